@@ -1,0 +1,107 @@
+/**
+ * Replays a recorded run as a live source: its received lines, read again in order from the
+ * recorder and handed to a station's pipeline at `speed` times the original pace (or as fast
+ * as the event loop allows for `max`). Same LineSource contract as a serial port.
+ */
+import { EventEmitter } from 'node:events';
+import type { RunReader } from '../recorder/types';
+import type { LineSource, LineSourceEvents } from '../sources/types';
+
+/** A replay is asked for as a simulator source whose scenario names the run: `run:12` or `run:12:max`. */
+export const REPLAY_SCENARIO = /^run:(\d{1,12})(:max)?$/;
+
+export function replayScenarioName(runId: number, speed: number | 'max'): string {
+  return speed === 'max' ? `run:${runId}:max` : `run:${runId}`;
+}
+
+export function parseReplayScenario(scenario: string): { runId: number; max: boolean } | null {
+  const match = REPLAY_SCENARIO.exec(scenario);
+  return match ? { runId: Number(match[1]), max: match[2] !== undefined } : null;
+}
+
+/** Lines handed out per timer turn, so a fast replay never starves the event loop. */
+const MAX_LINES_PER_TURN = 500;
+/** Longest single wait, so stop() is never held up by a long gap in the recording. */
+const MAX_WAIT_MS = 250;
+
+export class ReplaySource extends EventEmitter<LineSourceEvents> implements LineSource {
+  readonly label: string;
+  private iterator: Iterator<{ text: string; rxS: number }> | null = null;
+  private pending: { text: string; rxS: number } | null = null;
+  private firstRecordedRxS: number | null = null;
+  private startedS = 0;
+  private timer: NodeJS.Timeout | null = null;
+  private state: 'idle' | 'running' | 'stopped' = 'idle';
+
+  constructor(
+    private readonly reader: RunReader,
+    private readonly runId: number,
+    /** Recorded seconds per wall-clock second; null = as fast as possible. */
+    private readonly speed: number | null,
+    private readonly now: () => number = () => Date.now() / 1000,
+  ) {
+    super();
+    if (speed !== null && !(Number.isFinite(speed) && speed > 0))
+      throw new Error(`replay speed must be positive, got ${speed}`);
+    this.label = `replay:run ${runId}`;
+  }
+
+  start(): void {
+    if (this.state !== 'idle') return;
+    if (!this.reader.getRun(this.runId)) {
+      this.state = 'stopped';
+      this.emit('status', { state: 'closed', detail: `run ${this.runId} is not in the recording database` });
+      return;
+    }
+    this.state = 'running';
+    this.iterator = this.reader.lineIterator(this.runId);
+    this.startedS = this.now();
+    const pace = this.speed === null ? 'as fast as possible' : `at ${this.speed}x`;
+    this.emit('status', { state: 'open', detail: `replaying run ${this.runId} ${pace}` });
+    this.schedule(0);
+  }
+
+  async stop(): Promise<void> {
+    if (this.timer) clearTimeout(this.timer);
+    this.timer = null;
+    if (this.state === 'running')
+      this.emit('status', { state: 'closed', detail: `replay of run ${this.runId} stopped` });
+    this.state = 'stopped';
+  }
+
+  private schedule(ms: number): void {
+    this.timer = setTimeout(() => this.turn(), Math.min(ms, MAX_WAIT_MS));
+  }
+
+  private turn(): void {
+    this.timer = null;
+    if (this.state !== 'running' || !this.iterator) return;
+    for (let sent = 0; sent < MAX_LINES_PER_TURN; sent++) {
+      const line = this.pending ?? this.next();
+      this.pending = null;
+      if (!line) {
+        this.state = 'stopped';
+        this.emit('status', { state: 'closed', detail: `replay of run ${this.runId} finished` });
+        return;
+      }
+      this.firstRecordedRxS ??= line.rxS;
+      const dueS =
+        this.speed === null ? this.now() : this.startedS + (line.rxS - this.firstRecordedRxS) / this.speed;
+      const waitMs = (dueS - this.now()) * 1000;
+      if (waitMs > 1) {
+        this.pending = line;
+        this.schedule(waitMs);
+        return;
+      }
+      // The receive clock of a replay is the replay's own: the recorded spacing, compressed.
+      this.emit('line', { text: line.text, rxS: dueS, tooLong: false });
+      if (this.state !== 'running') return;
+    }
+    this.schedule(0);
+  }
+
+  private next(): { text: string; rxS: number } | null {
+    const step = this.iterator!.next();
+    return step.done ? null : step.value;
+  }
+}

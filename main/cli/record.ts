@@ -1,0 +1,245 @@
+/**
+ * `taperline record`: records every given serial port as a station into the recording
+ * database, with one live status line per station, until Ctrl-C / SIGTERM closes the runs.
+ */
+import { readFileSync } from 'node:fs';
+import type { Command } from 'commander';
+import { parseProfile } from '../../shared/chemistry/profile';
+import type { EngineEvent } from '../../shared/engine/types';
+import { defaultDbPath } from '../recorder/paths';
+import { openRecorder } from '../recorder/recorder';
+import { RecorderOpenError } from '../recorder/errors';
+import type { Recorder } from '../recorder/types';
+import { createStationManager } from '../station/manager';
+import type { StationManager, StationSnapshot } from '../station/types';
+import { UsageError } from './errors';
+
+interface RecordOptions {
+  port: string[];
+  baud: string;
+  profile?: string;
+  db?: string;
+  resumeWithin: string;
+  statusEvery: string;
+}
+
+/** Baud rates go to the OS as they are; a positive integer is all that can be checked here. */
+function parseBaud(text: string): number {
+  const baud = Number(text);
+  if (!Number.isInteger(baud) || baud <= 0)
+    throw new UsageError(`--baud must be a positive whole number, e.g. 115200 (got "${text}")`);
+  return baud;
+}
+
+function parseSeconds(name: string, text: string): number {
+  const s = Number(text);
+  if (!Number.isFinite(s) || s < 0)
+    throw new UsageError(`${name} must be a number of seconds (got "${text}")`);
+  return s;
+}
+
+/** The profile JSON as written (it is stored with each run), refused with the bad key named. */
+function readProfileJson(path: string): unknown {
+  let json: unknown;
+  try {
+    json = JSON.parse(readFileSync(path, 'utf8'));
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT') throw new UsageError(`no such profile file: ${path}`);
+    if (code) throw new UsageError(`cannot read profile ${path}: ${(err as Error).message}`);
+    throw new UsageError(`profile ${path} is not valid JSON: ${(err as Error).message}`);
+  }
+  const result = parseProfile(json);
+  if (!result.ok) throw new UsageError(`profile ${path} refused: ${result.error}`);
+  return json;
+}
+
+function fmt(value: number | undefined, digits: number, unit: string): string {
+  return value === undefined || !Number.isFinite(value) ? `-- ${unit}` : `${value.toFixed(digits)} ${unit}`;
+}
+
+/** One station's status: port state, phase, V, A, °C, Ah, active alarms. */
+export function statusLine(s: StationSnapshot): string {
+  const last = s.state.last;
+  const port = s.source.state === 'open' ? 'open' : s.source.state;
+  const alarms = s.state.activeAlarms.map((a) =>
+    a.level === 'critical' ? `${a.code.toUpperCase()}!` : a.code,
+  );
+  const recording = s.recording.ok ? `run ${s.runId ?? '-'}` : 'NOT RECORDING';
+  return [
+    s.label,
+    port,
+    s.state.phase,
+    fmt(last?.vbatV, 3, 'V'),
+    fmt(last?.ibatA, 3, 'A'),
+    fmt(last?.tempC, 1, '°C'),
+    fmt(s.state.metrics.ah, 3, 'Ah'),
+    `${s.lines} line${s.lines === 1 ? '' : 's'}${s.rejected > 0 ? ` (${s.rejected} rejected)` : ''}`,
+    recording,
+    alarms.length > 0 ? `alarms: ${alarms.join(' ')}` : 'no alarms',
+  ].join(' | ');
+}
+
+function eventText(label: string, e: EngineEvent): string | null {
+  switch (e.type) {
+    case 'phase':
+      return `${label}: phase ${e.phase} at t=${e.t.toFixed(1)} s`;
+    case 'alarm':
+      return `${label}: ${e.level.toUpperCase()} ${e.code} at t=${e.t.toFixed(1)} s: ${e.message}`;
+    case 'alarm-clear':
+      return `${label}: ${e.code} cleared at t=${e.t.toFixed(1)} s`;
+    case 'gap':
+      return e.endT === null
+        ? `${label}: telemetry gap from t=${e.t.toFixed(1)} s`
+        : `${label}: gap t=${e.t.toFixed(1)}–${e.endT.toFixed(1)} s (${e.reason})`;
+  }
+}
+
+/** The live display: status lines redrawn in place on a terminal, plain periodic lines otherwise. */
+class LiveDisplay {
+  private drawn = 0;
+  private lastPlainMs = 0;
+  constructor(
+    private readonly out: NodeJS.WriteStream,
+    private readonly plainEveryMs: number,
+  ) {}
+
+  private get tty(): boolean {
+    return this.out.isTTY === true;
+  }
+
+  private clearBlock(): void {
+    if (!this.tty || this.drawn === 0) return;
+    this.out.moveCursor(0, -this.drawn);
+    this.out.cursorTo(0);
+    this.out.clearScreenDown();
+    this.drawn = 0;
+  }
+
+  /** A message above the status block (events, problems). */
+  message(text: string, stations: StationSnapshot[]): void {
+    this.clearBlock();
+    this.out.write(`${text}\n`);
+    if (this.tty) this.draw(stations);
+  }
+
+  update(stations: StationSnapshot[], force = false): void {
+    if (this.tty) {
+      this.clearBlock();
+      this.draw(stations);
+    } else if (force || Date.now() - this.lastPlainMs >= this.plainEveryMs) {
+      this.lastPlainMs = Date.now();
+      const stamp = new Date().toISOString();
+      for (const s of stations) this.out.write(`${stamp} ${statusLine(s)}\n`);
+    }
+  }
+
+  private draw(stations: StationSnapshot[]): void {
+    const width = this.out.columns || 120;
+    for (const s of stations) this.out.write(`${statusLine(s).slice(0, width - 1)}\n`);
+    this.drawn = stations.length;
+  }
+}
+
+export function registerRecord(program: Command): void {
+  program
+    .command('record')
+    .description(
+      'Record serial ports as stations into the recording database, with a live status line per station.',
+    )
+    .requiredOption(
+      '--port <path>',
+      'serial port of a charger (repeat for several stations)',
+      (v: string, all: string[]) => [...all, v],
+      [] as string[],
+    )
+    .option('--baud <n>', 'baud rate of every port', '115200')
+    .option(
+      '--profile <file>',
+      'profile JSON (what is charged and how it reports); without it a Li-ion pack is assumed',
+    )
+    .option('--db <file>', `recording database (default ${defaultDbPath()})`)
+    .option(
+      '--resume-within <seconds>',
+      'continue a run a crash left open when its port records again within this time',
+      '600',
+    )
+    .option('--status-every <seconds>', 'without a terminal: print the status lines this often', '10')
+    .action(async (options: RecordOptions) => {
+      await record(options);
+    });
+}
+
+async function record(options: RecordOptions): Promise<void> {
+  const baudRate = parseBaud(options.baud);
+  const resumeWithinS = parseSeconds('--resume-within', options.resumeWithin);
+  const statusEveryS = parseSeconds('--status-every', options.statusEvery);
+  const ports = [...new Set(options.port)];
+  if (ports.length === 0) throw new UsageError('give at least one --port PATH (see `taperline ports`)');
+  const profile = options.profile ? readProfileJson(options.profile) : null;
+  const dbPath = options.db ?? defaultDbPath();
+  const display = new LiveDisplay(process.stdout, statusEveryS * 1000);
+
+  let recorder: Recorder | null = null;
+  try {
+    recorder = openRecorder(dbPath);
+  } catch (err) {
+    if (!(err instanceof RecorderOpenError)) throw err;
+    process.stderr.write(`taperline: ${err.message}. The live display continues without recording.\n`);
+  }
+  const manager: StationManager = createStationManager({ recorder, resumeWithinS });
+  const snapshots = () => manager.list();
+  manager.on('event', ({ stationId, event }) => {
+    const text = eventText(manager.get(stationId)?.label ?? stationId, event);
+    if (text) display.message(text, snapshots());
+  });
+  manager.on('problem', ({ message, level }) =>
+    display.message(`${level === 'critical' ? 'CRITICAL' : 'note'}: ${message}`, snapshots()),
+  );
+  manager.on('source', ({ stationId, status }) => {
+    if (status.state === 'open')
+      display.message(`${manager.get(stationId)?.label ?? stationId}: ${status.detail}`, snapshots());
+  });
+
+  if (profile === null)
+    process.stdout.write(
+      'No --profile given: each station assumes a Li-ion pack from its first pack voltage.\n',
+    );
+  process.stdout.write(
+    `Recording ${ports.length} station(s) into ${recorder ? dbPath : '(nothing: no database)'}; Ctrl-C stops and closes the runs.\n`,
+  );
+  process.stdout.write(
+    'Caution: charging lithium and lead-acid cells can start fires; set limits from the cell maker’s datasheet and local codes.\n',
+  );
+  for (const path of ports) {
+    await manager.addStation({
+      id: `serial:${path}`,
+      label: path,
+      source: { kind: 'serial', path, baudRate },
+      profile,
+    });
+  }
+
+  const refresh = setInterval(() => display.update(snapshots()), 500);
+  display.update(snapshots(), true);
+  await new Promise<void>((resolve) => {
+    const stop = () => resolve();
+    process.once('SIGINT', stop);
+    process.once('SIGTERM', stop);
+  });
+  clearInterval(refresh);
+  const last = snapshots();
+  await manager.close();
+  recorder?.close();
+  display.update(last, true);
+  for (const s of last) {
+    process.stdout.write(
+      `${s.label}: ${s.runId !== null && recorder ? `run ${s.runId} closed as stopped` : 'not recorded'}, ${s.lines} lines (${s.rejected} rejected), ${s.state.metrics.ah.toFixed(3)} Ah\n`,
+    );
+  }
+  const health = recorder?.health();
+  if (health && health.dropped > 0)
+    process.stdout.write(
+      `${health.dropped} rows could not be written and were dropped (see the problems above).\n`,
+    );
+}

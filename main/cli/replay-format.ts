@@ -1,0 +1,50 @@
+/** How replay prints events and the summary. */
+import type { EngineEvent, RunSummary } from '../../shared/engine/types';
+
+const round = (value: number, digits: number) => Number(value.toFixed(digits));
+
+/** The NDJSON summary record of PROTOCOL section 4. */
+export function summaryRecord(summary: RunSummary) {
+  const phaseS: Record<string, number> = {};
+  for (const [phase, seconds] of Object.entries(summary.phaseS)) phaseS[phase] = round(seconds ?? 0, 1);
+  return {
+    type: 'summary' as const,
+    durationS: round(summary.durationS, 1),
+    ah: round(summary.ah, 4),
+    wh: round(summary.wh, 3),
+    phaseS,
+    lines: summary.lines,
+    rejected: summary.rejected,
+  };
+}
+
+export function formatClock(tS: number): string {
+  const s = Math.max(0, Math.round(tS));
+  const h = Math.floor(s / 3600);
+  const m = Math.floor((s % 3600) / 60);
+  return `${h}:${String(m).padStart(2, '0')}:${String(s % 60).padStart(2, '0')}`;
+}
+
+export function formatEventText(event: EngineEvent): string {
+  const at = formatClock(event.t).padStart(9);
+  switch (event.type) {
+    case 'phase':
+      return `${at}  phase  ${event.phase}`;
+    case 'alarm':
+      return `${at}  ${event.level === 'critical' ? 'ALARM' : 'warn '}  ${event.code}: ${event.message}`;
+    case 'alarm-clear':
+      return `${at}  clear  ${event.code}`;
+    case 'gap':
+      return `${at}  gap    ${event.reason}${event.endT === null ? '' : ` (until ${formatClock(event.endT)})`}`;
+  }
+}
+
+export function formatSummaryText(summary: RunSummary): string {
+  const phases = Object.entries(summary.phaseS)
+    .map(([phase, seconds]) => `${phase} ${formatClock(seconds ?? 0)}`)
+    .join(', ');
+  return (
+    `summary: ${formatClock(summary.durationS)} run, ${summary.ah.toFixed(3)} Ah, ${summary.wh.toFixed(2)} Wh; ` +
+    `${phases || 'no phases'}; ${summary.lines} lines, ${summary.rejected} rejected\n`
+  );
+}

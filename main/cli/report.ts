@@ -1,0 +1,93 @@
+/**
+ * `taperline report`: a Run report (one self-contained HTML file, optionally a PDF) of a
+ * recorded run or a telemetry file, read through the same pipeline as a live port.
+ */
+import { writeFileSync } from 'node:fs';
+import { basename } from 'node:path';
+import type { Command } from 'commander';
+import { diagnose } from '../../shared/engine/diagnosis';
+import { buildRunReport, collectRun, NoChromiumError, renderReportPdf } from '../report';
+import { UsageError } from './errors';
+import { openLineInput } from './line-input';
+import { loadProfileFile } from './profile-file';
+
+interface ReportOptions {
+  db?: string;
+  run?: string;
+  profile?: string;
+  out: string;
+  pdf?: string;
+  interval: string;
+}
+
+const DATABASE_FILE = /\.(sqlite3?|db)$/i;
+
+export function registerReport(program: Command): void {
+  program
+    .command('report')
+    .description('Write a Run report: one self-contained HTML file (and a PDF with --pdf).')
+    .argument(
+      '[target]',
+      'run id or latest (with --db), a .sqlite recording, or a telemetry file (- for standard input)',
+    )
+    .option('--db <file>', 'the recording database holding the run')
+    .option('--run <id|latest>', 'which run of a .sqlite FILE', 'latest')
+    .option('--profile <file>', 'profile JSON (what is charged and how it reports)')
+    .requiredOption('--out <file>', 'where to write the HTML report')
+    .option('--pdf <file>', 'also print the report to this PDF (needs Chromium)')
+    .option('--interval <seconds>', 'seconds between lines that carry no device time', '1')
+    .action(async (target: string | undefined, options: ReportOptions) => {
+      await runReport(target, options);
+    });
+}
+
+async function runReport(target: string | undefined, options: ReportOptions): Promise<void> {
+  const intervalS = Number(options.interval);
+  if (!Number.isFinite(intervalS) || intervalS <= 0) {
+    throw new UsageError(`--interval must be a positive number of seconds (got "${options.interval}")`);
+  }
+  const profile = options.profile ? loadProfileFile(options.profile) : null;
+  let input;
+  let source: string;
+  if (options.db) {
+    const run = target ?? 'latest';
+    input = openLineInput(undefined, { db: options.db, run, intervalS });
+    source = `run ${run} of ${basename(options.db)}`;
+  } else if (target && DATABASE_FILE.test(target)) {
+    input = openLineInput(target, { run: options.run ?? 'latest', intervalS });
+    source = `run ${options.run ?? 'latest'} of ${basename(target)}`;
+  } else {
+    if (!target)
+      throw new UsageError('give a run id with --db FILE, a .sqlite recording, or a telemetry file');
+    input = openLineInput(target, { intervalS });
+    source = target === '-' ? 'standard input' : basename(target);
+  }
+  const run = await collectRun(input, profile);
+  if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
+  const html = buildRunReport({
+    profile: run.profile,
+    samples: run.samples,
+    events: run.events,
+    summary: run.summary,
+    diagnosis: diagnose({ profile: run.profile, samples: run.samples, events: run.events }),
+    title: `Run report: ${run.profile.name}`,
+    source,
+  });
+  try {
+    writeFileSync(options.out, html);
+  } catch (err) {
+    throw new UsageError(`cannot write the report to ${options.out}: ${(err as Error).message}`);
+  }
+  process.stderr.write(
+    `taperline: wrote ${options.out} (${run.samples.length} samples, ${run.events.length} events)\n`,
+  );
+  if (!options.pdf) return;
+  try {
+    await renderReportPdf(options.out, options.pdf);
+    process.stderr.write(`taperline: wrote ${options.pdf}\n`);
+  } catch (err) {
+    if (!(err instanceof NoChromiumError)) throw err;
+    process.stderr.write(`taperline: PDF not written: ${err.message}\n`);
+    process.exitCode = 1;
+  }
+}

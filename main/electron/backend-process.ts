@@ -1,0 +1,146 @@
+/**
+ * The Electron main process's handle on its backend child. better-sqlite3 is compiled for
+ * Node's ABI, not Electron's, so the service runs in a plain Node process forked from the
+ * bundled CLI (`cli.cjs serve --electron-child`), with `execPath` the Node that ran
+ * `npm start` (TAPERLINE_NODE, set by bin/start.cjs), else `node` from PATH.
+ */
+import { fork, type ChildProcess } from 'node:child_process';
+import type { PushEnvelope } from '../../shared/ipc/pushes';
+import type { ReplyEnvelope, RequestEnvelope } from '../../shared/ipc/requests';
+import { isChildMessage, type ChildToParent, type ParentToChild } from '../app/child-protocol';
+
+/** Environment variable naming the Node executable that runs the backend. */
+export const NODE_ENV_VAR = 'TAPERLINE_NODE';
+
+export function nodeExecutable(env: NodeJS.ProcessEnv = process.env): string {
+  return env[NODE_ENV_VAR] || 'node';
+}
+
+export interface BackendProcessOptions {
+  /** The bundled CLI (dist/cli.cjs). */
+  cliPath: string;
+  /** Arguments after `serve --electron-child` (e.g. `--simulate bench-liion-3s`). */
+  serveArgs: string[];
+  nodePath?: string;
+  /** Extra arguments for node itself (tests run the TypeScript CLI with `--import tsx`). */
+  execArgv?: string[];
+  env?: NodeJS.ProcessEnv;
+  onPush(push: PushEnvelope): void;
+  choosePath(suggestedName: string, what: 'csv' | 'html' | 'pdf'): Promise<string | null>;
+  printPdf(html: string, path: string): Promise<void>;
+  /** The child stopped on its own (crash, fatal start-up problem). */
+  onExit(reason: string): void;
+}
+
+export interface BackendProcess {
+  /** Resolves when the backend is ready, rejects with its start-up problem. */
+  ready: Promise<{ dbPath: string | null; stations: number }>;
+  request(envelope: RequestEnvelope): Promise<ReplyEnvelope>;
+  /** Ask the child to close its runs and exit; kills it after `graceMs`. */
+  stop(graceMs?: number): Promise<void>;
+  readonly pid: number | undefined;
+}
+
+export function startBackendProcess(options: BackendProcessOptions): BackendProcess {
+  const child: ChildProcess = fork(options.cliPath, ['serve', '--electron-child', ...options.serveArgs], {
+    execPath: options.nodePath ?? nodeExecutable(),
+    execArgv: options.execArgv ?? [],
+    env: options.env ?? process.env,
+    stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
+    serialization: 'json',
+  });
+  const pending = new Map<number, (reply: ReplyEnvelope) => void>();
+  let exited = false;
+  let fatal: string | null = null;
+  let markReady!: (info: { dbPath: string | null; stations: number }) => void;
+  let failReady!: (err: Error) => void;
+  const ready = new Promise<{ dbPath: string | null; stations: number }>((resolve, reject) => {
+    markReady = resolve;
+    failReady = reject;
+  });
+  ready.catch(() => undefined);
+
+  const post = (message: ParentToChild) => {
+    if (!exited && child.connected) child.send(message);
+  };
+
+  child.on('message', (message: unknown) => {
+    if (!isChildMessage(message)) return;
+    void onMessage(message);
+  });
+  child.on('error', (err) => {
+    fatal ??= `the backend could not start (${err.message}); is Node installed? set ${NODE_ENV_VAR} to its path`;
+    failReady(new Error(fatal));
+  });
+  child.on('exit', (code, signal) => {
+    exited = true;
+    const reason = fatal ?? `the backend stopped (${signal ?? `exit code ${code}`})`;
+    failReady(new Error(reason));
+    for (const resolve of pending.values()) resolve({ id: -1, ok: false, error: reason });
+    pending.clear();
+    options.onExit(reason);
+  });
+
+  async function onMessage(message: ChildToParent): Promise<void> {
+    switch (message.type) {
+      case 'ready':
+        markReady({ dbPath: message.dbPath, stations: message.stations });
+        return;
+      case 'fatal':
+        fatal = message.message;
+        failReady(new Error(message.message));
+        return;
+      case 'push':
+        options.onPush(message.push);
+        return;
+      case 'reply': {
+        const resolve = pending.get(message.reply.id);
+        pending.delete(message.reply.id);
+        resolve?.(message.reply);
+        return;
+      }
+      case 'choose-path': {
+        const path = await options.choosePath(message.suggestedName, message.what).catch(() => null);
+        post({ type: 'chosen-path', ticket: message.ticket, path });
+        return;
+      }
+      case 'print-pdf': {
+        const error = await options.printPdf(message.html, message.path).then(
+          () => null,
+          (err: unknown) => (err instanceof Error ? err.message : String(err)),
+        );
+        post({ type: 'printed', ticket: message.ticket, error });
+        return;
+      }
+    }
+  }
+
+  // Renderer ids are per window; the relay uses its own ids so two windows never collide.
+  let nextId = 1;
+  return {
+    ready,
+    get pid() {
+      return child.pid;
+    },
+    request(envelope) {
+      if (exited)
+        return Promise.resolve({ id: envelope.id, ok: false, error: fatal ?? 'the backend is not running' });
+      const relayId = nextId++;
+      return new Promise<ReplyEnvelope>((resolve) => {
+        pending.set(relayId, (reply) => resolve({ ...reply, id: envelope.id } as ReplyEnvelope));
+        post({ type: 'request', envelope: { ...envelope, id: relayId } });
+      });
+    },
+    stop(graceMs = 5000) {
+      if (exited) return Promise.resolve();
+      return new Promise<void>((resolve) => {
+        const timer = setTimeout(() => child.kill('SIGKILL'), graceMs);
+        child.once('exit', () => {
+          clearTimeout(timer);
+          resolve();
+        });
+        post({ type: 'stop' });
+      });
+    },
+  };
+}

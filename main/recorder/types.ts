@@ -1,0 +1,131 @@
+/** Contract of the SQLite recorder, read by the Runs view, replay, diagnose and report. */
+import type { Writable } from 'node:stream';
+import type { EngineEvent, TimedSample } from '../../shared/engine/types';
+import type { FeedLine } from '../station/types';
+
+export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';
+
+export interface RunRow {
+  id: number;
+  stationId: string;
+  stationLabel: string;
+  profileName: string;
+  chemistry: string;
+  /** Receive time of the run's start / end, seconds since the Unix epoch. */
+  startRxS: number;
+  endRxS: number | null;
+  endReason: RunEndReason | null;
+  durationS: number;
+  ah: number;
+  wh: number;
+  lines: number;
+  rejected: number;
+}
+
+/** Canonical sample columns that overview queries can bucket. */
+export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
+
+/** One time bucket of an overview: min/max/mean of each requested field over [t0S, t1S). */
+export interface OverviewBucket {
+  t0S: number;
+  t1S: number;
+  count: number;
+  values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
+}
+
+export interface RunReader {
+  listRuns(): RunRow[];
+  getRun(runId: number): RunRow | null;
+  /** `latest` = the newest run. */
+  resolveRunId(run: number | 'latest'): number | null;
+  deleteRun(runId: number): void;
+  /** The profile JSON the run was recorded with (as the user wrote it). */
+  profileOf(runId: number): unknown;
+  overview(
+    runId: number,
+    fields: SeriesField[],
+    fromT: number,
+    toT: number,
+    buckets: number,
+  ): OverviewBucket[];
+  samples(runId: number, fromT: number, toT: number, limit?: number): TimedSample[];
+  events(runId: number): EngineEvent[];
+  rawLines(runId: number, afterRxS?: number, limit?: number): FeedLine[];
+  /** Every received line of a run in order, as if read again from a file. */
+  lineIterator(runId: number): IterableIterator<{ text: string; rxS: number; tooLong?: boolean }>;
+  /** Samples as CSV (units in the headers); `out` is left open for the caller to end. */
+  exportCsv(runId: number, out: Writable): Promise<void>;
+}
+
+// ---- Write side (additive): what a station writes while it records. ----
+
+/** What a new run is started with. */
+export interface RunStart {
+  stationId: string;
+  stationLabel: string;
+  profileName: string;
+  chemistry: string;
+  /** The profile JSON as the user wrote it. */
+  profileJson: unknown;
+  startRxS: number;
+}
+
+/** Running totals of a run, as the pipeline's summary gives them. */
+export interface RunTotals {
+  durationS: number;
+  ah: number;
+  wh: number;
+  lines: number;
+  rejected: number;
+  phaseS?: Partial<Record<string, number>>;
+}
+
+/** One received (or sent) line as it is stored; `tooLong` = cut at MAX_LINE_BYTES. */
+export interface StoredLine extends FeedLine {
+  tooLong?: boolean;
+}
+
+/** How the recorder is doing: a person reads `problem`; `dropped` counts rows given up. */
+export interface RecorderHealth {
+  ok: boolean;
+  problem: string | null;
+  /** Rows waiting for the next successful write (kept in memory and retried). */
+  pending: number;
+  /** Rows dropped because the backlog outgrew its cap while writes kept failing. */
+  dropped: number;
+}
+
+export interface RecorderEvents {
+  /** Writing failed (disk full, read-only folder, locked database): level is always critical. */
+  problem: [{ message: string; level: 'critical' }];
+  /** Writes succeed again after a problem. */
+  recovered: [{ message: string }];
+}
+
+export interface Recorder extends RunReader {
+  readonly dbPath: string;
+  /**
+   * Start a run. When `resumeWithinS` is set and the same station's latest run was closed
+   * as `interrupted` (a crash) no longer than that before `startRxS`, with the same profile,
+   * that run is reopened and continued instead.
+   */
+  startRun(
+    start: RunStart,
+    options?: { resumeWithinS?: number },
+  ): { runId: number; resumed: boolean; lastRxS: number | null };
+  addLine(runId: number, line: StoredLine): void;
+  addSample(runId: number, sample: TimedSample): void;
+  /** A line the host sent to the device: kept in the raw lines and as a `sent` event at run time `t`. */
+  addSent(runId: number, sent: { text: string; rxS: number; t: number }): void;
+  /** A gap event with `endT` set completes the open gap of the same `t` (one row per gap). */
+  addEvent(runId: number, event: EngineEvent): void;
+  updateTotals(runId: number, totals: RunTotals): void;
+  endRun(runId: number, endRxS: number, reason: RunEndReason, totals?: RunTotals): void;
+  /** Write everything queued now (also done every 250 ms and when the batch is large). */
+  flush(): void;
+  health(): RecorderHealth;
+  on<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
+  off<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
+  /** Flush, checkpoint the WAL and close the file. */
+  close(): void;
+}

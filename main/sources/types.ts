@@ -1,0 +1,39 @@
+/**
+ * A line source: anything that delivers telemetry lines to a station (a serial port,
+ * the built-in simulated charger, a replayed file). Every source feeds the same pipeline.
+ */
+import type { EventEmitter } from 'node:events';
+
+export interface SourceLine {
+  /** The line without its newline (and without a trailing `\r`). */
+  text: string;
+  /** Host receive time, seconds since the Unix epoch (or a replay's synthetic clock). */
+  rxS: number;
+  /** The line was cut at MAX_LINE_BYTES; the rest up to the next newline was dropped. */
+  tooLong: boolean;
+}
+
+export type SourceStatus =
+  | { state: 'connecting'; detail: string }
+  | { state: 'open'; detail: string }
+  /** Telemetry interrupted (unplug, vanished device); the source keeps retrying. */
+  | { state: 'lost'; detail: string; sinceRxS: number }
+  | { state: 'closed'; detail: string };
+
+export interface LineSourceEvents {
+  line: [SourceLine];
+  status: [SourceStatus];
+  /** A line the host sent to the device (firmware commands), recorded too. */
+  sent: [{ text: string; rxS: number }];
+  /** A problem a person should read; the source keeps going unless it emits `closed`. */
+  problem: [string];
+}
+
+export interface LineSource extends EventEmitter<LineSourceEvents> {
+  /** Human-readable identity: a port path, `simulator:bench-liion-3s`, a file name. */
+  readonly label: string;
+  start(): void;
+  stop(): Promise<void>;
+  /** Send a line to the device, when the source can (serial ports, the simulator). */
+  send?(text: string, ending: '\n' | '\r\n' | '\r' | ''): Promise<void>;
+}

@@ -1,0 +1,393 @@
+/**
+ * The station manager: each station is one source + its own pipeline + its run in the
+ * recorder. Stations never wait for each other: every handler is synchronous and the
+ * recorder batches its writes, so a slow or broken port only affects its own station.
+ */
+import { EventEmitter } from 'node:events';
+import { parseProfile } from '../../shared/chemistry/profile';
+import type { ResolvedProfile } from '../../shared/chemistry/types';
+import { createPipeline, type Pipeline } from '../../shared/engine/pipeline';
+import { createLineParser, type LineParser } from '../../shared/telemetry/parse-line';
+import type { EngineEvent } from '../../shared/engine/types';
+import type { Recorder, RunEndReason } from '../recorder/types';
+import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
+import { StationConfigError } from './errors';
+import { toFeedLine } from './feed-line';
+import { defaultMakeSource } from './sources';
+import type {
+  SourceConfig,
+  StationConfig,
+  StationManager,
+  StationManagerEvents,
+  StationSnapshot,
+} from './types';
+
+export const MAX_STATIONS = 16;
+
+export interface StationManagerOptions {
+  /** Where runs are recorded; null or absent = live only. */
+  recorder?: Recorder | null;
+  /** Receive clock, seconds since the epoch. */
+  now?: () => number;
+  /** Builds a station's source (default: serial ports and the built-in simulator). */
+  makeSource?: (config: SourceConfig, stationId: string) => LineSource;
+  /** Silence checks and run totals, every this many ms (default 1000). */
+  tickMs?: number;
+  /** Continue a run a crash left open when the same station comes back within this (default 600 s). */
+  resumeWithinS?: number;
+  /** Longest wait for one source to stop on close/remove. */
+  stopTimeoutMs?: number;
+}
+
+interface Station {
+  id: string;
+  label: string;
+  config: StationConfig;
+  profileJson: unknown;
+  profile: ResolvedProfile;
+  pipeline: Pipeline;
+  source: LineSource;
+  status: SourceStatus;
+  runId: number | null;
+  gap: { startRxS: number; reason: string } | null;
+  lines: number;
+  rejected: number;
+  /** No profile given: lines wait here until the first pack voltage shows the cell count. */
+  assume: { probe: LineParser; pending: SourceLine[] } | null;
+}
+
+/** Lines held while a profile is assumed; past this the pack is taken as one cell. */
+const MAX_ASSUME_LINES = 100;
+
+/** Li-ion nominal 3.7 V per cell (common practice) gives the cell count of an unknown pack. */
+export function assumedProfileJson(vbatV: number | undefined): {
+  name: string;
+  chemistry: 'li-ion';
+  cells: number;
+} {
+  const cells =
+    vbatV === undefined || !Number.isFinite(vbatV) ? 1 : Math.min(64, Math.max(1, Math.round(vbatV / 3.7)));
+  return { name: `assumed ${cells}S li-ion`, chemistry: 'li-ion', cells };
+}
+
+function resolve(stationId: string, profileJson: unknown): ResolvedProfile {
+  const result = parseProfile(profileJson);
+  if (!result.ok)
+    throw new StationConfigError(`station ${stationId}: profile refused: ${result.error}`, result.key);
+  return result.profile;
+}
+
+export function createStationManager(options: StationManagerOptions = {}): StationManager {
+  const recorder = options.recorder ?? null;
+  const now = options.now ?? (() => Date.now() / 1000);
+  const makeSource = options.makeSource ?? ((config: SourceConfig) => defaultMakeSource(config, { now }));
+  const resumeWithinS = options.resumeWithinS ?? 600;
+  const stopTimeoutMs = options.stopTimeoutMs ?? 3000;
+  const stations = new Map<string, Station>();
+  const emitter = new EventEmitter<StationManagerEvents>();
+  let closed = false;
+
+  function problem(stationId: string | null, message: string, level: 'warn' | 'critical'): void {
+    emitter.emit('problem', { stationId, message, level });
+  }
+
+  /** Run one station's handler; its failure is reported, never passed to another station. */
+  function guarded(st: Station, what: string, fn: () => void): void {
+    try {
+      fn();
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: ${what} failed: ${err instanceof Error ? err.message : String(err)}; the station keeps going`,
+        'warn',
+      );
+    }
+  }
+
+  function record(st: Station, events: EngineEvent[]): void {
+    for (const event of events) {
+      if (recorder && st.runId !== null) recorder.addEvent(st.runId, event);
+      emitter.emit('event', { stationId: st.id, event });
+    }
+  }
+
+  function snapshot(st: Station): StationSnapshot {
+    const health = recorder?.health();
+    return {
+      id: st.id,
+      label: st.label,
+      sourceLabel: st.source.label,
+      source: st.status,
+      runId: st.runId,
+      profile: st.profile,
+      state: st.pipeline.state(),
+      lines: st.lines,
+      rejected: st.rejected,
+      recording: health
+        ? { ok: health.ok, problem: health.problem }
+        : { ok: false, problem: 'not recording: no database is open' },
+    };
+  }
+
+  function startRun(st: Station): void {
+    st.runId = null;
+    if (!recorder) return;
+    try {
+      const started = recorder.startRun(
+        {
+          stationId: st.id,
+          stationLabel: st.label,
+          profileName: st.profile.name,
+          chemistry: st.profile.chemistry,
+          profileJson: st.profileJson,
+          startRxS: now(),
+        },
+        { resumeWithinS },
+      );
+      st.runId = started.runId;
+      if (started.resumed) {
+        // Rebuild the run's state from its own lines, then mark the time the recorder was away.
+        for (const line of recorder.lineIterator(started.runId))
+          st.pipeline.pushLine(line.text, line.rxS, line.tooLong === true);
+        const s = st.pipeline.summary();
+        st.lines = s.lines;
+        st.rejected = s.rejected;
+        if (started.lastRxS !== null)
+          openGap(st, started.lastRxS, 'the recorder was not running (crash or restart)');
+      }
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: could not start a run in the database: ${err instanceof Error ? err.message : String(err)}; the live display continues`,
+        'critical',
+      );
+    }
+  }
+
+  function endRun(st: Station, reason: RunEndReason): void {
+    if (!recorder || st.runId === null) return;
+    try {
+      recorder.endRun(st.runId, now(), reason, st.pipeline.summary());
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: could not close run ${st.runId}: ${err instanceof Error ? err.message : String(err)}`,
+        'critical',
+      );
+    }
+  }
+
+  function openGap(st: Station, startRxS: number, reason: string): void {
+    if (st.gap) return;
+    st.gap = { startRxS, reason };
+    record(st, st.pipeline.gap(startRxS, null, reason));
+  }
+
+  function closeGap(st: Station, endRxS: number): void {
+    const gap = st.gap;
+    if (!gap) return;
+    st.gap = null;
+    record(st, st.pipeline.gap(gap.startRxS, endRxS, `${gap.reason}; lines lost during the gap: unknown`));
+  }
+
+  /** Without a profile: hold lines until a sample shows the pack voltage, then start the run. */
+  function assumeFrom(st: Station, assume: NonNullable<Station['assume']>, line: SourceLine): void {
+    assume.pending.push(line);
+    const probe = assume.probe.parse(line.text, line.rxS, line.tooLong);
+    const vbatV = probe.kind === 'sample' ? probe.sample.vbatV : undefined;
+    if (vbatV === undefined && assume.pending.length < MAX_ASSUME_LINES) return;
+    st.assume = null;
+    st.profileJson = assumedProfileJson(vbatV);
+    st.profile = resolve(st.id, st.profileJson);
+    st.pipeline = createPipeline(st.profile);
+    problem(
+      st.id,
+      `${st.label}: no profile given; assuming a ${st.profile.cells}-cell Li-ion pack` +
+        (vbatV === undefined
+          ? ' (no pack voltage seen yet)'
+          : ` from the first pack voltage ${vbatV.toFixed(2)} V`) +
+        '. Give a profile for the pack’s real limits; follow the cell maker’s datasheet.',
+      'warn',
+    );
+    startRun(st);
+    for (const held of assume.pending) onLine(st, held);
+  }
+
+  function onLine(st: Station, line: SourceLine): void {
+    if (st.assume) return assumeFrom(st, st.assume, line);
+    if (st.gap) closeGap(st, line.rxS);
+    const out = st.pipeline.pushLine(line.text, line.rxS, line.tooLong);
+    const feed = toFeedLine(line.text, line.rxS, out.result);
+    if (out.result.kind !== 'blank') st.lines++;
+    if (out.result.kind === 'rejected') st.rejected++;
+    if (recorder && st.runId !== null) {
+      recorder.addLine(st.runId, line.tooLong ? { ...feed, tooLong: true } : feed);
+      if (out.sample) recorder.addSample(st.runId, out.sample);
+    }
+    emitter.emit('line', { stationId: st.id, line: feed });
+    if (out.sample) emitter.emit('sample', { stationId: st.id, sample: out.sample });
+    record(st, out.events);
+  }
+
+  function onStatus(st: Station, status: SourceStatus): void {
+    st.status = status;
+    if (status.state === 'lost') {
+      openGap(st, status.sinceRxS, `telemetry lost: ${status.detail}`);
+      problem(
+        st.id,
+        `${st.label}: ${status.detail}; the run continues and the gap is recorded when the port comes back`,
+        'warn',
+      );
+    } else if (status.state === 'open') {
+      closeGap(st, now());
+    }
+    emitter.emit('source', { stationId: st.id, status });
+  }
+
+  function wire(st: Station): void {
+    st.source.on('line', (line) => guarded(st, 'a received line', () => onLine(st, line)));
+    st.source.on('status', (status) => guarded(st, 'a port status change', () => onStatus(st, status)));
+    st.source.on('problem', (message) => problem(st.id, `${st.label}: ${message}`, 'warn'));
+    st.source.on('sent', (sent) =>
+      guarded(st, 'recording a sent line', () => {
+        if (recorder && st.runId !== null)
+          recorder.addSent(st.runId, { text: sent.text, rxS: sent.rxS, t: st.pipeline.timeOf(sent.rxS) });
+        emitter.emit('line', { stationId: st.id, line: { rxS: sent.rxS, text: sent.text, kind: 'sent' } });
+      }),
+    );
+  }
+
+  async function stopSource(st: Station): Promise<void> {
+    let timer: NodeJS.Timeout | undefined;
+    const timeout = new Promise<void>((resolveTimeout) => {
+      timer = setTimeout(() => {
+        problem(st.id, `${st.label}: the source did not stop within ${stopTimeoutMs} ms; leaving it`, 'warn');
+        resolveTimeout();
+      }, stopTimeoutMs);
+    });
+    try {
+      await Promise.race([st.source.stop(), timeout]);
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: stopping the source failed: ${err instanceof Error ? err.message : String(err)}`,
+        'warn',
+      );
+    } finally {
+      clearTimeout(timer);
+    }
+  }
+
+  const ticker = setInterval(() => {
+    const rxS = now();
+    for (const st of stations.values()) {
+      guarded(st, 'the silence check', () => {
+        record(st, st.pipeline.tick(rxS));
+        if (recorder && st.runId !== null) recorder.updateTotals(st.runId, st.pipeline.summary());
+      });
+    }
+  }, options.tickMs ?? 1000);
+  ticker.unref();
+
+  const onRecorderProblem = (p: { message: string }) => problem(null, p.message, 'critical');
+  const onRecorderRecovered = (p: { message: string }) => problem(null, p.message, 'warn');
+  recorder?.on('problem', onRecorderProblem);
+  recorder?.on('recovered', onRecorderRecovered);
+
+  function must(stationId: string): Station {
+    const st = stations.get(stationId);
+    if (!st) throw new StationConfigError(`no station ${stationId}`);
+    return st;
+  }
+
+  const manager = Object.assign(emitter, {
+    async addStation(config: StationConfig): Promise<StationSnapshot> {
+      if (closed) throw new StationConfigError('the station manager is closed');
+      if (stations.has(config.id)) throw new StationConfigError(`a station ${config.id} already exists`);
+      if (stations.size >= MAX_STATIONS)
+        throw new StationConfigError(`at most ${MAX_STATIONS} stations at once; remove one first`);
+      const assumed = config.profile === null || config.profile === undefined;
+      const profileJson = assumed ? assumedProfileJson(undefined) : config.profile;
+      const profile = resolve(config.id, profileJson);
+      let source: LineSource;
+      try {
+        source = makeSource(config.source, config.id);
+      } catch (err) {
+        throw new StationConfigError(
+          `station ${config.id}: cannot use its source: ${err instanceof Error ? err.message : String(err)}`,
+        );
+      }
+      const st: Station = {
+        id: config.id,
+        label: config.label ?? config.id,
+        config,
+        profileJson,
+        profile,
+        pipeline: createPipeline(profile),
+        source,
+        status: { state: 'connecting', detail: `starting ${source.label}` },
+        runId: null,
+        gap: null,
+        lines: 0,
+        rejected: 0,
+        assume: assumed ? { probe: createLineParser({}), pending: [] } : null,
+      };
+      stations.set(st.id, st);
+      if (!assumed) startRun(st);
+      wire(st);
+      const snap = snapshot(st);
+      emitter.emit('station-added', snap);
+      source.start();
+      return snap;
+    },
+    async removeStation(stationId: string): Promise<void> {
+      const st = must(stationId);
+      stations.delete(stationId);
+      await stopSource(st);
+      st.source.removeAllListeners();
+      endRun(st, 'stopped');
+      emitter.emit('station-removed', { stationId });
+    },
+    list: () => [...stations.values()].map(snapshot),
+    get(stationId: string) {
+      const st = stations.get(stationId);
+      return st ? snapshot(st) : null;
+    },
+    async send(stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | '') {
+      const st = must(stationId);
+      if (!st.source.send) throw new StationConfigError(`${st.label}: this source cannot send lines`);
+      await st.source.send(text, ending);
+    },
+    async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
+      const st = must(stationId);
+      const profile = resolve(stationId, profileJson);
+      endRun(st, 'profile-changed');
+      st.profileJson = profileJson;
+      st.profile = profile;
+      st.pipeline = createPipeline(profile);
+      st.lines = 0;
+      st.rejected = 0;
+      st.assume = null;
+      // The new run has no time axis yet: a port still lost is a gap of the new run only once it has samples.
+      st.gap = null;
+      startRun(st);
+      return snapshot(st);
+    },
+    async close(): Promise<void> {
+      if (closed) return;
+      closed = true;
+      clearInterval(ticker);
+      const all = [...stations.values()];
+      stations.clear();
+      await Promise.all(all.map((st) => stopSource(st)));
+      for (const st of all) {
+        st.source.removeAllListeners();
+        endRun(st, 'stopped');
+      }
+      recorder?.flush();
+      recorder?.off('problem', onRecorderProblem);
+      recorder?.off('recovered', onRecorderRecovered);
+    },
+  });
+  return manager as StationManager;
+}

@@ -1,0 +1,86 @@
+/**
+ * A Chart.js plugin that shades the phases behind the data (wash + hatch per phase) and draws
+ * time markers (the picked point, a diagnosed time, alarms) in front of it.
+ */
+import type { Chart, Plugin } from 'chart.js';
+import { hatchTile } from './phase-style';
+import type { PhaseSpan } from './phase-spans';
+
+export interface TimeMarker {
+  t: number;
+  kind: 'pick' | 'diagnosed' | 'alarm-warn' | 'alarm-critical';
+  /** Drawn at the top of the line (short: "Diagnosed", "overtemp"). */
+  label?: string;
+}
+
+export interface BandSource {
+  spans(): readonly PhaseSpan[];
+  markers(): readonly TimeMarker[];
+}
+
+const MARKER_INK: Record<TimeMarker['kind'], string> = {
+  pick: '#2b2f36',
+  diagnosed: '#a8322a',
+  'alarm-warn': '#8a6200',
+  'alarm-critical': '#a8322a',
+};
+
+/** One plugin instance per chart: it reads the spans and markers of its own panel. */
+export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
+  const patterns = new Map<string, CanvasPattern>();
+  const patternFor = (chart: Chart, phase: PhaseSpan['phase']) => {
+    let p = patterns.get(phase);
+    if (!p) {
+      p = chart.ctx.createPattern(hatchTile(phase), 'repeat')!;
+      patterns.set(phase, p);
+    }
+    return p;
+  };
+  return {
+    id: 'taperlinePhaseBands',
+    beforeDatasetsDraw(chart) {
+      const { ctx, chartArea } = chart;
+      const x = chart.scales.x;
+      if (!x || !chartArea) return;
+      ctx.save();
+      ctx.beginPath();
+      ctx.rect(chartArea.left, chartArea.top, chartArea.right - chartArea.left, chartArea.bottom - chartArea.top);
+      ctx.clip();
+      for (const span of source.spans()) {
+        if (span.t1 < x.min || span.t0 > x.max) continue;
+        const left = Math.max(chartArea.left, x.getPixelForValue(span.t0));
+        const right = Math.min(chartArea.right, x.getPixelForValue(span.t1));
+        if (right - left < 0.5) continue;
+        ctx.fillStyle = patternFor(chart, span.phase);
+        ctx.fillRect(left, chartArea.top, right - left, chartArea.bottom - chartArea.top);
+      }
+      ctx.restore();
+    },
+    afterDatasetsDraw(chart) {
+      const { ctx, chartArea } = chart;
+      const x = chart.scales.x;
+      if (!x || !chartArea) return;
+      ctx.save();
+      for (const marker of source.markers()) {
+        if (marker.t < x.min || marker.t > x.max) continue;
+        const px = Math.round(x.getPixelForValue(marker.t)) + 0.5;
+        ctx.strokeStyle = MARKER_INK[marker.kind];
+        ctx.lineWidth = marker.kind === 'pick' ? 1 : 2;
+        ctx.setLineDash(marker.kind === 'pick' ? [4, 3] : marker.kind === 'alarm-warn' ? [2, 2] : []);
+        ctx.beginPath();
+        ctx.moveTo(px, chartArea.top);
+        ctx.lineTo(px, chartArea.bottom);
+        ctx.stroke();
+        if (marker.label) {
+          ctx.setLineDash([]);
+          ctx.font = '600 11px system-ui, sans-serif';
+          ctx.fillStyle = MARKER_INK[marker.kind];
+          const w = ctx.measureText(marker.label).width;
+          const lx = px + 4 + w > chartArea.right ? px - 4 - w : px + 4;
+          ctx.fillText(marker.label, lx, chartArea.top + 12);
+        }
+      }
+      ctx.restore();
+    },
+  };
+}

@@ -1,0 +1,272 @@
+/**
+ * The profile editor: chemistry presets, cells, capacity, currents, limits and the field
+ * mapping, turned into profile JSON (PROTOCOL section 2). An empty box means "the chemistry's
+ * default"; what the user typed is sent as typed, so the backend's refusal names the key.
+ */
+import type { ResolvedProfile } from '../../shared/chemistry/types';
+import { CHEMISTRIES } from '../../shared/chemistry/types';
+import type { CanonicalField } from '../../shared/telemetry/types';
+import { h } from '../dom';
+
+interface NumberField {
+  key: string;
+  label: string;
+  unit: string;
+  hint?: string;
+}
+
+const BASICS: NumberField[] = [
+  { key: 'cells', label: 'Cells in series', unit: '' },
+  { key: 'capacityAh', label: 'Capacity', unit: 'Ah' },
+  { key: 'chargeCurrentA', label: 'Charge current', unit: 'A' },
+  { key: 'terminationA', label: 'Termination current', unit: 'A' },
+];
+
+const LIMITS: NumberField[] = [
+  { key: 'timerMin', label: 'Safety timer', unit: 'min', hint: 'empty = chemistry default' },
+  { key: 'tempWindowC.0', label: 'Charge window, lowest', unit: '°C' },
+  { key: 'tempWindowC.1', label: 'Charge window, highest', unit: '°C' },
+  { key: 'inputSetpointV', label: 'MPPT / input set point', unit: 'V' },
+  { key: 'regulationVPerCell', label: 'Regulation voltage', unit: 'V/cell' },
+  { key: 'overvoltageVPerCell', label: 'Overvoltage limit', unit: 'V/cell' },
+  { key: 'preconditionVPerCell', label: 'Precondition below', unit: 'V/cell' },
+  { key: 'preconditionA', label: 'Precondition current', unit: 'A' },
+  { key: 'preconditionTimeoutMin', label: 'Precondition timeout', unit: 'min' },
+  { key: 'stallMin', label: 'Stall after', unit: 'min' },
+  { key: 'silenceS', label: 'Silence after', unit: 's' },
+];
+
+const MAPPED_FIELDS: { field: CanonicalField; words: string; unitHint: string }[] = [
+  { field: 't', words: 'device time', unitHint: 's, ms' },
+  { field: 'vbat', words: 'pack voltage', unitHint: 'V, mV' },
+  { field: 'ibat', words: 'charge current', unitHint: 'A, mA' },
+  { field: 'temp', words: 'pack temperature', unitHint: 'C' },
+  { field: 'ntc', words: 'thermistor reading', unitHint: 'counts, Ohm' },
+  { field: 'vin', words: 'source voltage', unitHint: 'V, mV' },
+  { field: 'iin', words: 'source current', unitHint: 'A, mA' },
+  { field: 'chg', words: 'charging pin', unitHint: '0/1' },
+  { field: 'flt', words: 'fault pin', unitHint: '0/1' },
+  { field: 'src', words: 'source kind', unitHint: 'text' },
+];
+
+/** Invented demo presets (no real product): starting points to edit, not recommendations. */
+export const PRESETS: { label: string; profile: Record<string, unknown> }[] = [
+  { label: 'Li-ion (chemistry defaults)', profile: { chemistry: 'li-ion', cells: 1 } },
+  { label: 'Li-ion high voltage (chemistry defaults)', profile: { chemistry: 'li-ion-hv', cells: 1 } },
+  { label: 'LiFePO4 (chemistry defaults)', profile: { chemistry: 'lifepo4', cells: 4 } },
+  { label: 'Lead-acid (chemistry defaults)', profile: { chemistry: 'lead-acid', cells: 6 } },
+  { label: 'NiMH (chemistry defaults)', profile: { chemistry: 'nimh', cells: 4 } },
+  {
+    label: 'Demo: garden sensor, 3S Li-ion 2.5 Ah',
+    profile: { name: 'garden-sensor 3S Li-ion', chemistry: 'li-ion', cells: 3, capacityAh: 2.5, chargeCurrentA: 1.0, terminationA: 0.1, timerMin: 240, tempWindowC: [0, 45] },
+  },
+  {
+    label: 'Demo: weather station, 4S LiFePO4 6 Ah on a panel',
+    profile: { name: 'weather-station 4S LiFePO4', chemistry: 'lifepo4', cells: 4, capacityAh: 6, chargeCurrentA: 2, inputSetpointV: 17.5 },
+  },
+  {
+    label: "Demo: boat's house battery, 12 V lead-acid 100 Ah",
+    profile: { name: 'boat house battery', chemistry: 'lead-acid', cells: 6, capacityAh: 100, chargeCurrentA: 10 },
+  },
+];
+
+export interface ProfileForm {
+  root: HTMLElement;
+  /** The profile JSON of the form as typed. */
+  read(): Record<string, unknown>;
+  fill(profile: Record<string, unknown>): void;
+  /** Show a refusal next to the field its key names (or at the top when no field matches). */
+  showError(key: string | null, message: string | null): void;
+  /** Show the resolved defaults as placeholders. */
+  showDefaults(resolved: ResolvedProfile | null): void;
+  onChange(cb: () => void): void;
+}
+
+export function createProfileForm(idPrefix: string): ProfileForm {
+  const inputs = new Map<string, HTMLInputElement | HTMLSelectElement>();
+  const errors = new Map<string, HTMLElement>();
+  const changeListeners: (() => void)[] = [];
+  const summary = h('p', { class: 'form-error', role: 'alert', id: `${idPrefix}-error`, hidden: true });
+
+  const numberRow = (f: NumberField) => {
+    const id = `${idPrefix}-${f.key.replace(/\./g, '-')}`;
+    const input = h('input', { id, type: 'text', inputmode: 'decimal', autocomplete: 'off', 'data-key': f.key, 'aria-describedby': `${id}-err` });
+    const err = h('span', { class: 'field-error', id: `${id}-err`, 'aria-live': 'polite' });
+    inputs.set(f.key, input);
+    errors.set(f.key, err);
+    return h('div', { class: 'form-row' }, h('label', { for: id }, f.label, f.unit ? h('span', { class: 'unit' }, ` [${f.unit}]`) : null), input, err);
+  };
+
+  const nameId = `${idPrefix}-name`;
+  const name = h('input', { id: nameId, type: 'text', autocomplete: 'off', 'data-key': 'name', maxlength: 200 });
+  inputs.set('name', name);
+  errors.set('name', h('span', { class: 'field-error', id: `${nameId}-err` }));
+  const chemId = `${idPrefix}-chemistry`;
+  const chemistry = h('select', { id: chemId, 'data-key': 'chemistry' });
+  for (const c of CHEMISTRIES) chemistry.append(h('option', { value: c }, c));
+  inputs.set('chemistry', chemistry);
+  errors.set('chemistry', h('span', { class: 'field-error' }));
+
+  const presetId = `${idPrefix}-preset`;
+  const preset = h('select', { id: presetId });
+  preset.append(h('option', { value: '' }, 'Pick a preset…'));
+  PRESETS.forEach((p, i) => preset.append(h('option', { value: String(i) }, p.label)));
+  preset.addEventListener('change', () => {
+    const p = PRESETS[Number(preset.value)];
+    if (p) {
+      form.fill(p.profile);
+      changed();
+    }
+  });
+
+  const mappingRows = MAPPED_FIELDS.map(({ field, words, unitHint }) => {
+    const keyInput = h('input', { type: 'text', autocomplete: 'off', 'data-key': `fields.${field}.key`, 'aria-label': `Device key for ${words} (${field})`, placeholder: field });
+    const unitInput = h('input', { type: 'text', autocomplete: 'off', 'data-key': `fields.${field}.unit`, 'aria-label': `Unit of ${words} (${unitHint})`, placeholder: unitHint });
+    inputs.set(`fields.${field}.key`, keyInput);
+    inputs.set(`fields.${field}.unit`, unitInput);
+    const err = h('span', { class: 'field-error' });
+    errors.set(`fields.${field}`, err);
+    return h('tr', {}, h('th', { scope: 'row' }, h('code', {}, field), ` ${words}`), h('td', {}, keyInput), h('td', {}, unitInput), h('td', {}, err));
+  });
+
+  const caution = h(
+    'div',
+    { class: 'caution', role: 'note', 'aria-label': 'Safety caution' },
+    h('strong', {}, '▲ Caution: '),
+    'lithium and lead-acid charging can start fires and injure. Take every limit from the cell maker’s datasheet, not from these defaults; follow local electrical and fire codes, charge on a non-flammable surface, and never leave a charging pack unattended without independent protection (fuse, thermal cut-off, battery management).',
+  );
+
+  const root = h(
+    'div',
+    { class: 'profile-form' },
+    summary,
+    h('div', { class: 'form-row' }, h('label', { for: presetId }, 'Preset'), preset),
+    h('div', { class: 'form-row' }, h('label', { for: nameId }, 'Profile name'), name, errors.get('name')!),
+    h('div', { class: 'form-row' }, h('label', { for: chemId }, 'Chemistry'), chemistry, errors.get('chemistry')!),
+    h('fieldset', {}, h('legend', {}, 'Pack'), ...BASICS.map(numberRow)),
+    h('fieldset', { class: 'limits' }, h('legend', {}, 'Limits (empty = chemistry default)'), caution, ...LIMITS.map(numberRow)),
+    h(
+      'fieldset',
+      {},
+      h('legend', {}, 'Field mapping: which key the device prints for each field'),
+      h('table', { class: 'mapping-table' }, h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Field'), h('th', { scope: 'col' }, 'Device key'), h('th', { scope: 'col' }, 'Unit'), h('th', { scope: 'col' }, ''))), h('tbody', {}, ...mappingRows)),
+    ),
+  );
+
+  const changed = () => changeListeners.forEach((cb) => cb());
+  root.addEventListener('input', (e) => {
+    if (e.target !== preset) changed();
+  });
+
+  const value = (input: HTMLInputElement | HTMLSelectElement): unknown => {
+    const text = input.value.trim();
+    if (text === '') return undefined;
+    const n = Number(text);
+    return Number.isFinite(n) ? n : text;
+  };
+
+  const form: ProfileForm = {
+    root,
+    read() {
+      const out: Record<string, unknown> = {};
+      const nameText = name.value.trim();
+      if (nameText) out.name = nameText;
+      out.chemistry = chemistry.value;
+      for (const f of [...BASICS, ...LIMITS]) {
+        if (f.key.startsWith('tempWindowC')) continue;
+        const v = value(inputs.get(f.key)!);
+        if (v !== undefined) out[f.key] = v;
+      }
+      const lo = value(inputs.get('tempWindowC.0')!);
+      const hi = value(inputs.get('tempWindowC.1')!);
+      if (lo !== undefined || hi !== undefined) out.tempWindowC = [lo ?? null, hi ?? null];
+      const fields: Record<string, Record<string, unknown>> = {};
+      for (const { field } of MAPPED_FIELDS) {
+        const key = inputs.get(`fields.${field}.key`)!.value.trim();
+        const unit = inputs.get(`fields.${field}.unit`)!.value.trim();
+        if (!key && !unit) continue;
+        fields[field] = { key: key || field, ...(unit ? { unit } : {}) };
+      }
+      if (Object.keys(fields).length) out.fields = fields;
+      return out;
+    },
+    fill(profile) {
+      for (const input of inputs.values()) if (input instanceof HTMLInputElement) input.value = '';
+      name.value = typeof profile.name === 'string' ? profile.name : '';
+      if (typeof profile.chemistry === 'string') chemistry.value = profile.chemistry;
+      for (const f of [...BASICS, ...LIMITS]) {
+        if (f.key.startsWith('tempWindowC')) continue;
+        const v = profile[f.key];
+        if (typeof v === 'number') (inputs.get(f.key) as HTMLInputElement).value = String(v);
+      }
+      const win = profile.tempWindowC;
+      if (Array.isArray(win)) {
+        (inputs.get('tempWindowC.0') as HTMLInputElement).value = win[0] === null || win[0] === undefined ? '' : String(win[0]);
+        (inputs.get('tempWindowC.1') as HTMLInputElement).value = win[1] === null || win[1] === undefined ? '' : String(win[1]);
+      }
+      const fields = (profile.fields ?? {}) as Record<string, { key?: string; unit?: string }>;
+      for (const [field, m] of Object.entries(fields)) {
+        const k = inputs.get(`fields.${field}.key`) as HTMLInputElement | undefined;
+        const u = inputs.get(`fields.${field}.unit`) as HTMLInputElement | undefined;
+        if (k && m?.key) k.value = m.key;
+        if (u && m?.unit) u.value = m.unit;
+      }
+    },
+    showError(key, message) {
+      for (const [k, el] of errors) {
+        el.textContent = '';
+        inputs.get(k)?.removeAttribute('aria-invalid');
+      }
+      for (const input of inputs.values()) input.removeAttribute('aria-invalid');
+      if (!message) {
+        summary.hidden = true;
+        summary.textContent = '';
+        return;
+      }
+      summary.hidden = false;
+      summary.textContent = `Profile refused: ${message}`;
+      if (!key) return;
+      // The most specific field the key names: `fields.vbat.unit`, then `fields.vbat`, ...
+      const parts = key.split('.');
+      for (let n = parts.length; n > 0; n--) {
+        const k = parts.slice(0, n).join('.');
+        const el = errors.get(k) ?? (k === 'tempWindowC' ? errors.get('tempWindowC.0') : undefined);
+        if (el) {
+          el.textContent = message;
+          const input = inputs.get(k) ?? inputs.get(`${k}.key`) ?? (k === 'tempWindowC' ? inputs.get('tempWindowC.0') : undefined);
+          input?.setAttribute('aria-invalid', 'true');
+          return;
+        }
+      }
+    },
+    showDefaults(resolved) {
+      if (!resolved) return;
+      const r = resolved as unknown as Record<string, unknown>;
+      for (const f of [...BASICS, ...LIMITS]) {
+        const input = inputs.get(f.key) as HTMLInputElement;
+        const v = f.key.startsWith('tempWindowC') ? resolved.tempWindowC[Number(f.key.slice(-1))] : r[f.key];
+        input.placeholder = v === null ? 'none' : v === undefined ? '' : `default ${v}`;
+      }
+    },
+    onChange(cb) {
+      changeListeners.push(cb);
+    },
+  };
+  return form;
+}
+
+/** A resolved profile back into the form's JSON (for editing a running station's profile). */
+export function resolvedToJson(p: ResolvedProfile): Record<string, unknown> {
+  return {
+    name: p.name,
+    chemistry: p.chemistry,
+    cells: p.cells,
+    capacityAh: p.capacityAh,
+    chargeCurrentA: p.chargeCurrentA,
+    terminationA: p.terminationA,
+    ...(p.timerMin !== null ? { timerMin: p.timerMin } : {}),
+    tempWindowC: p.tempWindowC,
+    ...(p.inputSetpointV !== null ? { inputSetpointV: p.inputSetpointV } : {}),
+    fields: p.fields,
+  };
+}

@@ -1,0 +1,168 @@
+/**
+ * Runs view: every recorded run with station, profile, start, duration, end reason and Ah;
+ * open one in the Bench view, replay it as a station, export its CSV, save its Run report,
+ * delete it (after a confirmation in place).
+ */
+import type { Api } from '../api';
+import { button, h } from '../dom';
+import { formatClock, formatDuration, formatNumber } from '../format';
+import type { Navigator, View } from '../router';
+import { errorText, readRuns, readStation, type RunListRow } from '../wire';
+
+const REPLAY_SPEEDS: { label: string; value: number | 'max' }[] = [
+  { label: '1× (as recorded)', value: 1 },
+  { label: '60× (a minute per second)', value: 60 },
+  { label: '600×', value: 600 },
+  { label: 'As fast as possible', value: 'max' },
+];
+
+export class RunsView implements View {
+  private readonly status = h('p', { class: 'runs-status', role: 'status', 'aria-live': 'polite' });
+  private readonly tableHost = h('div', { class: 'runs-table-host' });
+  private readonly speed = h('select', { id: 'replay-speed' });
+  private runs: RunListRow[] = [];
+  private confirming: number | null = null;
+
+  constructor(
+    root: HTMLElement,
+    private readonly api: Api,
+    private readonly nav: Navigator,
+  ) {
+    REPLAY_SPEEDS.forEach((s, i) => this.speed.append(h('option', { value: String(i) }, s.label)));
+    root.append(
+      h(
+        'div',
+        { class: 'view-head' },
+        h('h2', {}, 'Runs'),
+        h('p', { class: 'quiet' }, 'Recorded runs, newest first. Open one to browse it on the Bench view, or replay it through the pipeline as a new station.'),
+        h('div', { class: 'runs-tools' }, button('Refresh', () => void this.load(), { class: 'btn' }), h('label', { for: 'replay-speed', class: 'field-label' }, 'Replay speed'), this.speed),
+      ),
+      this.status,
+      this.tableHost,
+    );
+  }
+
+  show(): void {
+    void this.load();
+  }
+
+  hide(): void {
+    this.confirming = null;
+  }
+
+  async load(): Promise<void> {
+    try {
+      this.runs = readRuns(await this.api.request('runs.list', {})).sort((a, b) => b.startRxS - a.startRxS);
+      this.renderTable();
+    } catch (err) {
+      this.tableHost.replaceChildren(h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`));
+    }
+  }
+
+  private renderTable(): void {
+    if (this.runs.length === 0) {
+      this.tableHost.replaceChildren(h('p', { class: 'quiet' }, 'No recorded runs yet. A station records a run while it charges.'));
+      return;
+    }
+    const head = h('tr', {}, ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map((c) => h('th', { scope: 'col' }, c)));
+    const body = h('tbody');
+    for (const run of this.runs) body.append(this.row(run));
+    this.tableHost.replaceChildren(h('table', { class: 'runs-table' }, h('caption', { class: 'sr-only' }, 'Recorded runs'), h('thead', {}, head), body));
+  }
+
+  private row(run: RunListRow): HTMLTableRowElement {
+    const actions = h('td', { class: 'run-actions' });
+    if (this.confirming === run.id) {
+      actions.append(
+        h('span', { class: 'confirm-text' }, `Delete run ${run.id} and all its samples? This cannot be undone.`),
+        button('Yes, delete', () => void this.remove(run), { class: 'btn btn-small btn-danger' }),
+        button('Keep it', () => {
+          this.confirming = null;
+          this.renderTable();
+        }, { class: 'btn btn-small' }),
+      );
+    } else {
+      const label = (what: string) => `${what} run ${run.id}`;
+      actions.append(
+        button('Open', () => this.nav.open({ view: 'bench', runId: run.id }), { class: 'btn btn-small', 'aria-label': label('Open') }),
+        button('Replay', () => void this.replay(run), { class: 'btn btn-small', 'aria-label': label('Replay') }),
+        button('CSV', () => void this.exportCsv(run), { class: 'btn btn-small', 'aria-label': label('Export CSV of') }),
+        button('Report', () => void this.report(run), { class: 'btn btn-small', 'aria-label': label('Save the Run report of') }),
+        button('Delete…', () => {
+          this.confirming = run.id;
+          this.renderTable();
+          (this.tableHost.querySelector('.btn-danger') as HTMLButtonElement | null)?.focus();
+        }, { class: 'btn btn-small btn-quiet', 'aria-label': label('Delete') }),
+      );
+    }
+    return h(
+      'tr',
+      { 'data-run': run.id },
+      h('th', { scope: 'row' }, String(run.id)),
+      h('td', {}, run.stationLabel || run.stationId),
+      h('td', {}, `${run.profileName} (${run.chemistry})`),
+      h('td', {}, formatClock(run.startRxS)),
+      h('td', { class: 'num' }, formatDuration(run.durationS)),
+      h('td', {}, run.endReason ?? 'recording'),
+      h('td', { class: 'num' }, formatNumber(run.ah, 3, 'Ah')),
+      h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
+      actions,
+    );
+  }
+
+  private async remove(run: RunListRow): Promise<void> {
+    this.confirming = null;
+    try {
+      await this.api.request('runs.delete', { runId: run.id });
+      this.status.textContent = `Run ${run.id} was deleted.`;
+    } catch (err) {
+      this.status.textContent = `Run ${run.id} was not deleted: ${errorText(err)}`;
+    }
+    await this.load();
+  }
+
+  private async replay(run: RunListRow): Promise<void> {
+    const speed = REPLAY_SPEEDS[Number(this.speed.value)]?.value ?? 'max';
+    this.status.textContent = `Starting a replay of run ${run.id}…`;
+    try {
+      const station = readStation(await this.api.request('runs.replay', { runId: run.id, speed }));
+      this.status.textContent = `Run ${run.id} is replaying as station ${station.id}.`;
+      this.nav.open({ view: 'bench', stationId: station.id });
+    } catch (err) {
+      this.status.textContent = `The replay of run ${run.id} did not start: ${errorText(err)}`;
+    }
+  }
+
+  private async exportCsv(run: RunListRow): Promise<void> {
+    await this.deliver(run, 'CSV', () => this.api.request('runs.exportCsv', { runId: run.id }), `taperline-run-${run.id}.csv`);
+  }
+
+  private async report(run: RunListRow): Promise<void> {
+    await this.deliver(run, 'Run report', () => this.api.request('runs.report', { runId: run.id }), `taperline-run-${run.id}-report.html`);
+  }
+
+  /** Web mode answers with a URL (offered as a download link); Electron saves and says where. */
+  private async deliver(run: RunListRow, what: string, ask: () => Promise<unknown>, fileName: string): Promise<void> {
+    this.status.textContent = `Preparing the ${what} of run ${run.id}…`;
+    try {
+      const result = (await ask()) as { url?: string; savedTo?: string; cancelled?: boolean };
+      if (result.url) {
+        const href = this.withToken(result.url);
+        const link = h('a', { href, download: fileName, class: 'download-link', id: what === 'CSV' ? 'csv-link' : 'report-link' }, `Download the ${what} of run ${run.id}`);
+        this.status.replaceChildren(link);
+        link.focus();
+      } else if (result.savedTo) {
+        this.status.textContent = `The ${what} of run ${run.id} was saved to ${result.savedTo}.`;
+      } else {
+        this.status.textContent = `The ${what} of run ${run.id} was not saved (cancelled).`;
+      }
+    } catch (err) {
+      this.status.textContent = `The ${what} of run ${run.id} could not be made: ${errorText(err)}`;
+    }
+  }
+
+  private withToken(url: string): string {
+    if (!this.api.token) return url;
+    return `${url}${url.includes('?') ? '&' : '?'}token=${encodeURIComponent(this.api.token)}`;
+  }
+}

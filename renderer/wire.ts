@@ -1,0 +1,186 @@
+/**
+ * Decoders for the parts of replies and pushes the renderer reads.
+ *
+ * shared/ipc types several payloads as `unknown` (their TypeScript types live in main/, which
+ * the renderer may not import). Rather than trust them blindly, each payload is checked here
+ * at the edge with zod, for exactly the fields the views read; everything else passes through.
+ * Types that live in shared/ (run state, profile, engine events) are used as they are.
+ */
+import { z } from 'zod';
+import type { ResolvedProfile } from '../shared/chemistry/types';
+import type { EngineEvent, RunState } from '../shared/engine/types';
+import type { RejectReason } from '../shared/telemetry/types';
+
+const sourceStatus = z.looseObject({
+  state: z.enum(['connecting', 'open', 'lost', 'closed']),
+  detail: z.string(),
+});
+
+const snapshotSchema = z.looseObject({
+  id: z.string(),
+  label: z.string(),
+  sourceLabel: z.string(),
+  source: sourceStatus,
+  runId: z.number().nullable(),
+  profile: z.looseObject({ name: z.string(), chemistry: z.string(), cells: z.number() }),
+  state: z.looseObject({ t: z.number(), phase: z.string(), phaseSinceT: z.number(), activeAlarms: z.array(z.unknown()) }),
+  lines: z.number(),
+  rejected: z.number(),
+  recording: z.looseObject({ ok: z.boolean(), problem: z.string().nullable() }),
+});
+
+export interface StationView {
+  id: string;
+  label: string;
+  sourceLabel: string;
+  source: { state: 'connecting' | 'open' | 'lost' | 'closed'; detail: string };
+  runId: number | null;
+  profile: ResolvedProfile;
+  state: RunState;
+  lines: number;
+  rejected: number;
+  recording: { ok: boolean; problem: string | null };
+}
+
+export function readStation(raw: unknown): StationView {
+  const parsed = snapshotSchema.parse(raw);
+  return {
+    ...parsed,
+    profile: parsed.profile as unknown as ResolvedProfile,
+    state: parsed.state as unknown as RunState,
+  };
+}
+
+export function readStations(raw: unknown): StationView[] {
+  const list = Array.isArray(raw) ? raw : z.looseObject({ stations: z.array(z.unknown()) }).parse(raw).stations;
+  return list.map(readStation);
+}
+
+const feedLineSchema = z.looseObject({
+  rxS: z.number(),
+  text: z.string(),
+  kind: z.enum(['sample', 'header', 'firmware', 'blank', 'rejected', 'sent']),
+  reason: z.string().optional(),
+  detail: z.string().optional(),
+});
+
+export interface FeedRow {
+  rxS: number;
+  text: string;
+  kind: 'sample' | 'header' | 'firmware' | 'blank' | 'rejected' | 'sent';
+  reason?: RejectReason;
+  detail?: string;
+}
+
+export function readFeedLines(raw: unknown): FeedRow[] {
+  return z.array(feedLineSchema).parse(raw) as FeedRow[];
+}
+
+const runRowSchema = z.looseObject({
+  id: z.number(),
+  stationId: z.string(),
+  stationLabel: z.string(),
+  profileName: z.string(),
+  chemistry: z.string(),
+  startRxS: z.number(),
+  endRxS: z.number().nullable(),
+  endReason: z.string().nullable(),
+  durationS: z.number(),
+  ah: z.number(),
+  wh: z.number(),
+  lines: z.number(),
+  rejected: z.number(),
+});
+
+export type RunListRow = z.infer<typeof runRowSchema>;
+
+export function readRuns(raw: unknown): RunListRow[] {
+  const list = Array.isArray(raw) ? raw : z.looseObject({ runs: z.array(z.unknown()) }).parse(raw).runs;
+  return list.map((row) => runRowSchema.parse(row));
+}
+
+export function readRun(raw: unknown): RunListRow {
+  return runRowSchema.parse(raw && typeof raw === 'object' && 'run' in raw ? (raw as { run: unknown }).run : raw);
+}
+
+export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
+const stats = z.looseObject({ min: z.number(), max: z.number(), mean: z.number() });
+const bucketSchema = z.looseObject({
+  t0S: z.number(),
+  t1S: z.number(),
+  count: z.number(),
+  values: z.record(z.string(), stats.optional()),
+});
+export interface Bucket {
+  t0S: number;
+  t1S: number;
+  count: number;
+  values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
+}
+
+export function readBuckets(raw: unknown): Bucket[] {
+  const list = Array.isArray(raw) ? raw : z.looseObject({ buckets: z.array(z.unknown()) }).parse(raw).buckets;
+  return list.map((b) => bucketSchema.parse(b) as Bucket);
+}
+
+/** A recorded or historic sample as the charts read it (TimedSample fields, all optional). */
+export interface PlotSample {
+  t: number;
+  vbatV?: number | null;
+  ibatA?: number | null;
+  tempC?: number | null;
+  vinV?: number | null;
+  iinA?: number | null;
+}
+
+const plotSampleSchema = z.looseObject({
+  t: z.number(),
+  vbatV: z.number().nullish(),
+  ibatA: z.number().nullish(),
+  tempC: z.number().nullish(),
+  vinV: z.number().nullish(),
+  iinA: z.number().nullish(),
+});
+
+/** Samples arrive either as TimedSample objects or as a column batch (SampleBatch). */
+export function readSamples(raw: unknown): PlotSample[] {
+  if (raw && typeof raw === 'object' && !Array.isArray(raw)) {
+    const obj = raw as Record<string, unknown>;
+    if (Array.isArray(obj.tS)) return columnsToSamples(obj);
+    if (Array.isArray(obj.samples)) return readSamples(obj.samples);
+    if (obj.samples && typeof obj.samples === 'object') return readSamples(obj.samples);
+  }
+  return z.array(plotSampleSchema).parse(raw) as PlotSample[];
+}
+
+function columnsToSamples(obj: Record<string, unknown>): PlotSample[] {
+  const tS = obj.tS as number[];
+  const col = (name: string) => (Array.isArray(obj[name]) ? (obj[name] as (number | null)[]) : []);
+  const [vbat, ibat, temp, vin, iin] = ['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA'].map(col);
+  return tS.map((t, i) => ({ t, vbatV: vbat[i], ibatA: ibat[i], tempC: temp[i], vinV: vin[i], iinA: iin[i] }));
+}
+
+const eventSchema = z.looseObject({ type: z.enum(['phase', 'alarm', 'alarm-clear', 'gap']), t: z.number() });
+
+export function readEvents(raw: unknown): EngineEvent[] {
+  const list = Array.isArray(raw) ? raw : z.looseObject({ events: z.array(z.unknown()) }).parse(raw).events;
+  return list.map((e) => eventSchema.parse(e) as unknown as EngineEvent);
+}
+
+const causeSchema = z.looseObject({
+  code: z.string(),
+  confidence: z.number(),
+  evidence: z.array(z.string()),
+  next: z.array(z.string()),
+});
+const diagnosisSchema = z.looseObject({ t: z.number(), causes: z.array(causeSchema) });
+export type Diagnosis = z.infer<typeof diagnosisSchema>;
+
+export function readDiagnosis(raw: unknown): Diagnosis {
+  return diagnosisSchema.parse(raw);
+}
+
+/** Error text of a failed request, for a person to read. */
+export function errorText(err: unknown): string {
+  return err instanceof Error ? err.message : String(err);
+}

@@ -1,0 +1,461 @@
+/**
+ * The run engine: samples in, phase / alarm / gap events and state out (PROTOCOL section 3).
+ * It composes the phase machine, the alarm book and the metrics; the per-sample path works on
+ * numbers in place and allocates only the events it returns.
+ */
+import type { ResolvedProfile } from '../chemistry/types';
+import {
+  faultPinMessage,
+  inputLowMessage,
+  overtempMessage,
+  overvoltageMessage,
+  preconditionFaultMessage,
+  preconditionTimeoutMessage,
+  reverseCurrentMessage,
+  silenceMessage,
+  stallMessage,
+  timerMessage,
+  undertempMessage,
+} from './alarm-messages';
+import {
+  ALARM_INDEX,
+  ALARM_RULES,
+  AlarmBook,
+  CLEAR as CLEARED,
+  KEEP as KEPT,
+  RAISE as RAISED,
+} from './alarms';
+import { deriveLimits, type EngineLimits } from './limits';
+import { EnergyCounter, MpptTracking, SocEstimator, StepResistance, TaperModel } from './metrics';
+import { isChargingPhase as isChargingPhaseImport, PhaseMachine } from './phase-machine';
+import { ProgressTracker } from './progress';
+import { SampleView, SRC_PANEL as PANEL, SRC_UNKNOWN as UNKNOWN } from './sample-view';
+import {
+  ALARM_CODES,
+  PHASES,
+  type AlarmEvent,
+  type EngineEvent,
+  type Phase,
+  type RunEngine,
+  type RunMetrics,
+  type RunState,
+  type RunSummary,
+  type TimedSample,
+} from './types';
+
+// Module-local copies: under CommonJS interop (tests, tsx) an imported binding is read through
+// a getter on every use, which the per-sample path should not pay.
+const KEEP = KEPT;
+const CLEAR = CLEARED;
+const RAISE = RAISED;
+const SRC_PANEL = PANEL;
+const SRC_UNKNOWN = UNKNOWN;
+const isChargingPhase = isChargingPhaseImport;
+
+/** Returned when nothing happened. Shared and frozen: callers must not push into it. */
+const NO_EVENTS: EngineEvent[] = Object.freeze([]) as unknown as EngineEvent[];
+
+const OVERTEMP = ALARM_INDEX.overtemp;
+const UNDERTEMP = ALARM_INDEX.undertemp;
+const OVERVOLTAGE = ALARM_INDEX.overvoltage;
+const STALL = ALARM_INDEX.stall;
+const PRECONDITION_TIMEOUT = ALARM_INDEX['precondition-timeout'];
+const TIMER = ALARM_INDEX.timer;
+const INPUT_LOW = ALARM_INDEX['input-low'];
+const SILENCE = ALARM_INDEX.silence;
+const FAULT_PIN = ALARM_INDEX['fault-pin'];
+const REVERSE_CURRENT = ALARM_INDEX['reverse-current'];
+
+const PHASE_INDEX: Readonly<Record<Phase, number>> = Object.fromEntries(
+  PHASES.map((p, i) => [p, i]),
+) as Record<Phase, number>;
+
+export function createRunEngine(profile: ResolvedProfile): RunEngine {
+  return new Engine(profile);
+}
+
+class Engine implements RunEngine {
+  private readonly lim: EngineLimits;
+  private readonly view: SampleView;
+  private readonly machine: PhaseMachine;
+  private readonly book = new AlarmBook();
+  private readonly energy = new EnergyCounter();
+  private readonly resistance: StepResistance;
+  private readonly mppt = new MpptTracking();
+  private readonly taper = new TaperModel();
+  private readonly soc: SocEstimator;
+  private readonly progress: ProgressTracker;
+  private readonly phaseS = new Float64Array(PHASES.length);
+
+  private started = false;
+  private firstT = 0;
+  private lastT = 0;
+  private last: TimedSample | null = null;
+  private prevIbatA = NaN;
+  private prevVbatV = NaN;
+  private prevVinV = NaN;
+  private prevIinA = NaN;
+
+  private phase: Phase = 'idle';
+  private phaseSinceT = 0;
+  /** The first sample always announces its phase. */
+  private hasPhaseEvent = false;
+  /** Time in precondition / in charging phases, for the precondition timeout and the safety timer. */
+  private preconditionS = 0;
+  private chargeS = 0;
+  private stalledS = 0;
+
+  private gapOpen = false;
+  private gapStartT = NaN;
+  private gapReason = '';
+  private lastClosedGapStartT = NaN;
+  private lastClosedGapEndT = NaN;
+  /** The next interval between samples spans an interruption: do not integrate or judge it. */
+  private bridgeNext = false;
+
+  private out: EngineEvent[] | null = null;
+
+  constructor(private readonly profile: ResolvedProfile) {
+    this.lim = deriveLimits(profile);
+    this.view = new SampleView(profile.cells);
+    this.machine = new PhaseMachine(this.lim);
+    this.resistance = new StepResistance(this.lim.irStepA, this.lim.irMaxDtS);
+    this.soc = new SocEstimator(this.lim.capacityAh, this.lim.capacityKnown);
+    this.progress = new ProgressTracker(this.lim.stallRiseVPerCell, this.lim.stallRiseAh);
+  }
+
+  push(sample: TimedSample): EngineEvent[] {
+    this.out = null;
+    const v = this.view;
+    v.fill(sample);
+    // Time never runs backwards inside the engine (the time base already ensures it; this guards misuse).
+    if (this.started && !(sample.t >= this.lastT)) v.t = this.lastT;
+    const t = v.t;
+    const lim = this.lim;
+    if (!this.started) {
+      this.started = true;
+      this.firstT = t;
+      this.lastT = t;
+      this.bridgeNext = false;
+    } else {
+      const dtS = t > this.lastT ? t - this.lastT : 0;
+      if (this.bridgeNext) {
+        this.bridgeNext = false;
+        this.progress.restart();
+      } else {
+        this.accumulate(dtS);
+        // Replays do not tick: a hole in the data is a silence of its own.
+        if (dtS > lim.silenceS && !this.book.isActive(SILENCE)) {
+          this.raise(SILENCE, this.lastT + lim.silenceS, silenceMessage(dtS, lim.silenceS));
+        }
+      }
+      if (this.book.isActive(SILENCE)) this.clear(SILENCE, t);
+    }
+    this.lastT = t;
+    this.last = sample;
+
+    const machine = this.machine;
+    const entered = machine.update(v);
+    this.taper.update(t, v.ibatA, machine.phase === 'cv');
+    if (machine.phase === 'precondition') this.soc.anchorEmpty(this.energy.ah);
+    if (entered === 'done') this.soc.anchorFull(this.energy.ah);
+    // The clocks pause while nothing charges (a night, a cloud) and restart only when their
+    // stage is over: precondition when the pack leaves it, the safety timer at termination.
+    if (machine.phase === 'cc' || machine.phase === 'cv' || machine.phase === 'done') this.preconditionS = 0;
+    if (machine.phase === 'done') this.chargeS = 0;
+
+    this.evaluateAlarms(t);
+
+    const faulted =
+      this.book.isActive(FAULT_PIN) || this.book.isActive(PRECONDITION_TIMEOUT) || this.book.isActive(TIMER);
+    const shown: Phase = faulted ? 'fault' : machine.phase;
+    if (shown !== this.phase || !this.hasPhaseEvent) this.setPhase(shown, t);
+    this.prevIbatA = v.ibatA;
+    this.prevVbatV = v.vbatV;
+    this.prevVinV = v.vinV;
+    this.prevIinA = v.iinA;
+    return this.out ?? NO_EVENTS;
+  }
+
+  private setPhase(phase: Phase, t: number): void {
+    this.hasPhaseEvent = true;
+    this.phase = phase;
+    this.phaseSinceT = t;
+    this.emit({ type: 'phase', t, phase });
+  }
+
+  /** Charge, energy and clocks over the interval since the previous sample. */
+  private accumulate(dtS: number): void {
+    const v = this.view;
+    this.energy.add(
+      dtS,
+      this.prevIbatA,
+      v.ibatA,
+      this.prevVbatV,
+      v.vbatV,
+      this.prevVinV,
+      v.vinV,
+      this.prevIinA,
+      v.iinA,
+    );
+    this.resistance.add(dtS, this.prevVbatV, v.vbatV, this.prevIbatA, v.ibatA);
+    this.phaseS[PHASE_INDEX[this.phase]] += dtS;
+    // Charging time counts while current flows (or is not reported), like a charger whose timers
+    // pause while its input is too weak to deliver anything.
+    const underlying = this.machine.phase;
+    if (isChargingPhase(underlying) && !(this.prevIbatA < this.lim.flowOffA)) {
+      this.chargeS += dtS;
+      if (underlying === 'precondition') this.preconditionS += dtS;
+    }
+    const setpointV = this.lim.inputSetpointV;
+    if (setpointV !== null && isChargingPhase(this.phase) && (v.src === SRC_PANEL || v.src === SRC_UNKNOWN)) {
+      this.mppt.add(dtS, v.vinV, setpointV);
+    }
+  }
+
+  private evaluateAlarms(t: number): void {
+    const v = this.view;
+    const lim = this.lim;
+    const book = this.book;
+    const underlying = this.machine.phase;
+    const currentA = v.ibatA;
+    const charging = isChargingPhase(underlying) || currentA >= lim.flowOnA;
+    const tempC = v.tempC;
+    const vPerCell = v.vPerCell;
+
+    this.act(FAULT_PIN, t, book.step(FAULT_PIN, t, v.flt === 1, v.flt === 0));
+    this.act(
+      PRECONDITION_TIMEOUT,
+      t,
+      book.step(
+        PRECONDITION_TIMEOUT,
+        t,
+        underlying === 'precondition' && (this.preconditionS >= lim.preconditionTimeoutS || v.flt === 1),
+        underlying === 'cc' || underlying === 'cv' || underlying === 'done',
+      ),
+    );
+    if (lim.timerS !== null) {
+      this.act(
+        TIMER,
+        t,
+        book.step(
+          TIMER,
+          t,
+          this.chargeS >= lim.timerS && underlying !== 'done',
+          underlying === 'done' || this.chargeS < lim.timerS,
+        ),
+      );
+    }
+    this.act(
+      OVERTEMP,
+      t,
+      book.step(OVERTEMP, t, charging && tempC > lim.tempHighC, tempC <= lim.tempHighC - lim.tempHysteresisC),
+    );
+    this.act(
+      UNDERTEMP,
+      t,
+      book.step(UNDERTEMP, t, charging && tempC < lim.tempLowC, tempC >= lim.tempLowC + lim.tempHysteresisC),
+    );
+    this.act(
+      OVERVOLTAGE,
+      t,
+      book.step(OVERVOLTAGE, t, vPerCell > lim.overvoltageVPerCell, vPerCell < lim.overvoltageClearVPerCell),
+    );
+
+    const vinV = v.vinV;
+    if (vinV === vinV) {
+      const notDone = underlying !== 'done';
+      const sp = lim.inputSetpointV;
+      const low = (sp !== null && vinV <= sp * (1 + lim.inputAtFraction)) || vinV < v.vbatV;
+      const recovered = (sp === null || vinV > sp * (1 + lim.inputClearFraction)) && !(vinV < v.vbatV * 1.01);
+      this.act(INPUT_LOW, t, book.step(INPUT_LOW, t, notDone && low, !notDone || recovered));
+    } else {
+      book.step(INPUT_LOW, t, false, false); // no source data: never raised from missing data
+    }
+
+    if (currentA === currentA) {
+      const present = v.sourcePresent();
+      this.act(
+        REVERSE_CURRENT,
+        t,
+        book.step(
+          REVERSE_CURRENT,
+          t,
+          currentA < -lim.reverseA && present,
+          currentA >= -0.5 * lim.reverseA || !present,
+        ),
+      );
+    }
+
+    const shouldFlow = isChargingPhase(underlying) && this.phase !== 'fault';
+    this.progress.update(t, vPerCell, this.energy.ah, shouldFlow);
+    this.stalledS = this.progress.stalledS;
+    this.act(STALL, t, book.step(STALL, t, this.stalledS >= lim.stallS, this.stalledS < lim.stallS));
+  }
+
+  /** Carry out what the alarm book decided for alarm i. */
+  private act(i: number, t: number, decision: number): void {
+    if (decision === KEEP) return;
+    if (decision === CLEAR) {
+      this.clear(i, t);
+      return;
+    }
+    if (decision === RAISE) this.raise(i, t, this.messageFor(i));
+  }
+
+  private messageFor(i: number): string {
+    const v = this.view;
+    const p = this.profile;
+    const lim = this.lim;
+    switch (i) {
+      case OVERTEMP:
+        return overtempMessage(v.tempC, lim.tempHighC);
+      case UNDERTEMP:
+        return undertempMessage(v.tempC, lim.tempLowC, p);
+      case OVERVOLTAGE:
+        return overvoltageMessage(v.vbatV, p);
+      case STALL:
+        return stallMessage(
+          this.stalledS,
+          this.progress.filteredVPerCell(),
+          this.progress.ahSinceProgress(this.energy.ah),
+          this.machine.phase,
+          p,
+        );
+      case PRECONDITION_TIMEOUT:
+        return this.preconditionS < lim.preconditionTimeoutS
+          ? preconditionFaultMessage(v.vPerCell, p)
+          : preconditionTimeoutMessage(this.preconditionS, v.vPerCell, p);
+      case TIMER:
+        return timerMessage(this.chargeS, v.ibatA, p);
+      case INPUT_LOW:
+        return inputLowMessage(v.vinV, v.vbatV, lim.inputSetpointV);
+      case FAULT_PIN:
+        return faultPinMessage(v.vbatV, v.ibatA, v.tempC);
+      case REVERSE_CURRENT:
+        return reverseCurrentMessage(v.ibatA, lim.reverseA);
+      default:
+        // silence builds its message where it is raised (it needs the quiet time).
+        return silenceMessage(0, lim.silenceS);
+    }
+  }
+
+  private raise(i: number, t: number, message: string): void {
+    const code = ALARM_CODES[i];
+    const event: AlarmEvent = { type: 'alarm', t, code, level: ALARM_RULES[code].level, message };
+    this.book.raised(i, event);
+    this.emit(event);
+  }
+
+  private clear(i: number, t: number): void {
+    this.book.cleared(i);
+    this.emit({ type: 'alarm-clear', t, code: ALARM_CODES[i] });
+  }
+
+  private emit(event: EngineEvent): void {
+    if (this.out === null) this.out = [event];
+    else this.out.push(event);
+  }
+
+  tick(t: number): EngineEvent[] {
+    if (!this.started) return NO_EVENTS;
+    // An interruption the shell reported, with no sample since: it is a gap, not a silence.
+    if (this.gapOpen && this.lastT <= this.gapStartT) return NO_EVENTS;
+    const quietS = t - this.lastT;
+    if (!(quietS > this.lim.silenceS) || this.book.isActive(SILENCE)) return NO_EVENTS;
+    this.out = null;
+    this.raise(SILENCE, t, silenceMessage(quietS, this.lim.silenceS));
+    return this.out ?? NO_EVENTS;
+  }
+
+  gap(startT: number, endT: number | null, reason: string): EngineEvent[] {
+    this.out = null;
+    if (endT === null) {
+      if (this.gapOpen) return NO_EVENTS;
+      this.gapOpen = true;
+      this.gapStartT = startT;
+      this.gapReason = reason;
+      this.bridgeNext = this.started;
+      this.emit({ type: 'gap', t: startT, endT: null, reason });
+      return this.out ?? NO_EVENTS;
+    }
+    if (this.gapOpen) {
+      this.gapOpen = false;
+      const from = this.gapStartT;
+      this.lastClosedGapStartT = from;
+      this.lastClosedGapEndT = endT;
+      // Bridge only when no sample arrived since the interruption began.
+      this.bridgeNext = this.started && this.lastT <= from;
+      this.emit({ type: 'gap', t: from, endT, reason: reason || this.gapReason });
+      return this.out ?? NO_EVENTS;
+    }
+    if (startT === this.lastClosedGapStartT && endT === this.lastClosedGapEndT) return NO_EVENTS;
+    this.lastClosedGapStartT = startT;
+    this.lastClosedGapEndT = endT;
+    this.bridgeNext = this.started && this.lastT <= startT;
+    this.emit({ type: 'gap', t: startT, endT, reason });
+    return this.out ?? NO_EVENTS;
+  }
+
+  state(): RunState {
+    return {
+      t: this.lastT,
+      phase: this.phase,
+      phaseSinceT: this.phaseSinceT,
+      last: this.last,
+      metrics: this.metrics(),
+      activeAlarms: this.book.list(),
+    };
+  }
+
+  private metrics(): RunMetrics {
+    const energy = this.energy;
+    const ir = this.resistance.ohm;
+    const eta = this.eta();
+    return {
+      ah: energy.ah,
+      wh: energy.wh,
+      sourceWh: energy.sourceWhOrNull(),
+      efficiency: energy.efficiency(),
+      socPct: this.soc.pct(energy.ah),
+      etaS: eta[0],
+      etaCcS: eta[1],
+      etaCvS: eta[2],
+      internalResistanceOhm: ir === ir ? ir : null,
+      mpptErrorFraction: this.lim.inputSetpointV === null ? null : this.mppt.fraction(),
+    };
+  }
+
+  /** [total, CC part, CV part] seconds to full; null where unknown. */
+  private eta(): [number | null, number | null, number | null] {
+    const lim = this.lim;
+    const phase = this.phase;
+    if (phase === 'done') return [0, 0, 0];
+    const currentA = this.taper.currentA();
+    if (phase === 'cv') {
+      const cvS = this.taper.taperS(currentA, lim.terminationA);
+      return cvS === cvS ? [cvS, 0, cvS] : [null, 0, null];
+    }
+    if (phase !== 'cc' || !(currentA >= lim.flowOnA)) return [null, null, null];
+    const socPct = this.soc.pct(this.energy.ah);
+    if (socPct === null) return [null, null, null];
+    const remainingAh = (lim.capacityAh * (100 - socPct)) / 100;
+    if (!lim.hasCv) {
+      const ccS = (remainingAh * 3600) / currentA;
+      return [ccS, ccS, 0];
+    }
+    // With a taper learned earlier in this run, the CV part and the charge it still delivers
+    // come from the model; without one, all remaining charge is counted at the present current.
+    const cvS = this.taper.taperS(lim.setA, lim.terminationA);
+    const cvAh = this.taper.taperAh(lim.setA, lim.terminationA);
+    const ccAh = cvAh === cvAh ? Math.max(0, remainingAh - cvAh) : remainingAh;
+    const ccS = (ccAh * 3600) / currentA;
+    return cvS === cvS ? [ccS + cvS, ccS, cvS] : [ccS, ccS, null];
+  }
+
+  summary(): Omit<RunSummary, 'lines' | 'rejected'> {
+    const phaseS: Partial<Record<Phase, number>> = {};
+    for (let i = 0; i < PHASES.length; i++) if (this.phaseS[i] > 0) phaseS[PHASES[i]] = this.phaseS[i];
+    return { durationS: this.lastT - this.firstT, ah: this.energy.ah, wh: this.energy.wh, phaseS };
+  }
+}

@@ -1,0 +1,60 @@
+/**
+ * One sample reduced to plain numbers (NaN = not reported), refilled in place for every
+ * sample so the hot path allocates nothing.
+ */
+import type { TimedSample } from './types';
+
+export const SRC_UNKNOWN = 0;
+export const SRC_PANEL = 1;
+export const SRC_ADAPTER = 2;
+export const SRC_NONE = 3;
+
+/** Tri-state of a 0/1 status pin: not reported, deasserted, asserted. */
+export const PIN_UNKNOWN = -1;
+
+export class SampleView {
+  t = 0;
+  vbatV = NaN;
+  vPerCell = NaN;
+  ibatA = NaN;
+  tempC = NaN;
+  vinV = NaN;
+  iinA = NaN;
+  chg = PIN_UNKNOWN;
+  flt = PIN_UNKNOWN;
+  src = SRC_UNKNOWN;
+
+  constructor(private readonly cells: number) {}
+
+  fill(s: TimedSample): void {
+    this.t = s.t;
+    this.vbatV = s.vbatV ?? NaN;
+    this.vPerCell = this.vbatV / this.cells;
+    this.ibatA = s.ibatA ?? NaN;
+    this.tempC = s.tempC ?? NaN;
+    this.vinV = s.vinV ?? NaN;
+    this.iinA = s.iinA ?? NaN;
+    this.chg = s.chg === undefined ? PIN_UNKNOWN : s.chg ? 1 : 0;
+    this.flt = s.flt === undefined ? PIN_UNKNOWN : s.flt ? 1 : 0;
+    const src = s.src;
+    this.src =
+      src === undefined
+        ? SRC_UNKNOWN
+        : src === 'panel'
+          ? SRC_PANEL
+          : src === 'adapter'
+            ? SRC_ADAPTER
+            : SRC_NONE;
+  }
+
+  /** The source is known to be absent or too weak to charge: src=none, or vin under the pack. */
+  sourceAbsent(): boolean {
+    if (this.src === SRC_NONE) return true;
+    return this.vinV < this.vbatV; // false when either is NaN
+  }
+
+  /** A source is present for all we know (reported present, or not reported at all). */
+  sourcePresent(): boolean {
+    return !this.sourceAbsent();
+  }
+}

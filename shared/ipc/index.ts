@@ -1,0 +1,3 @@
+export * from './channels';
+export * from './requests';
+export * from './pushes';

@@ -1,0 +1,184 @@
+/**
+ * The Run report HTML without a browser: every section, the caution, no external reference,
+ * the data embedded as JSON and thinned to what a chart draws, text escaped; built from a
+ * real SQLite recording the way the app asks for it; and the PDF printer's message when no Chromium exists.
+ */
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { parseProfile, profileFromChemistry } from '../../shared/chemistry/profile';
+import { diagnose } from '../../shared/engine/diagnosis';
+import { createPipeline } from '../../shared/engine/pipeline';
+import type { EngineEvent, TimedSample } from '../../shared/engine/types';
+import { getScenario, simulatedLines } from '../../main/simulator';
+import { openRecorder, openRunReader } from '../../main/recorder';
+import { buildRunReport, NoChromiumError, renderReportPdf } from '../../main/report';
+import { RunCollector } from '../../main/report/collect-run';
+
+const SECTIONS = [
+  'report-title',
+  'caution',
+  'profile',
+  'timeline',
+  'metrics',
+  'charts',
+  'alarms',
+  'gaps',
+  'diagnosis',
+  'report-footer',
+];
+
+function scenarioRun(name: string) {
+  const parsed = parseProfile(getScenario(name).profile);
+  assert.ok(parsed.ok);
+  const collector = new RunCollector(parsed.profile);
+  let rxS = 0;
+  for (const line of simulatedLines(name, { shape: 'kv', sampleIntervalS: 1, seed: 5 }))
+    collector.push(line, rxS++, false);
+  return collector.finish();
+}
+
+function embeddedData(html: string): {
+  charts: { id: string; series: { label: string; xy: (number | null)[] }[] }[];
+  phases: unknown[];
+} {
+  const m = /<script type="application\/json" id="run-data">([\s\S]*?)<\/script>/.exec(html);
+  assert.ok(m, 'run data embedded as JSON');
+  return JSON.parse(m[1]);
+}
+
+test('a report has every section, the caution, and references nothing outside itself', () => {
+  const run = scenarioRun('overheating');
+  const html = buildRunReport({
+    ...run,
+    diagnosis: diagnose(run),
+    generatedAt: new Date('2026-06-01T12:00:00Z'),
+  });
+  for (const id of SECTIONS) assert.ok(html.includes(`id="${id}"`), `section ${id}`);
+  assert.match(html, /can start fires/);
+  assert.match(html, /cell maker.s datasheet and local codes/);
+  assert.match(html, /Content-Security-Policy" content="default-src 'none'/);
+  assert.doesNotMatch(html, /\s(src|href)\s*=\s*["']?(https?:)?\/\//i, 'no external src or href');
+  assert.doesNotMatch(html, /@import|url\(\s*["']?https?:/i, 'no external CSS');
+  assert.match(html, /Chart\.js v4/, 'Chart.js inlined');
+  assert.match(html, /Made by Taperline 0\.1\.0 on 2026-06-01T12:00:00\.000Z/);
+  assert.match(html, /overtemp/);
+  const data = embeddedData(html);
+  assert.deepEqual(
+    data.charts.map((c) => c.id),
+    ['chart-voltage', 'chart-current', 'chart-temperature', 'chart-source'],
+  );
+  assert.ok(data.phases.length >= 2);
+});
+
+test('a 7-day 1 Hz run is thinned to a few thousand points per series', (t) => {
+  const profile = profileFromChemistry('lead-acid', 6, { capacityAh: 100, chargeCurrentA: 10 });
+  const n = 7 * 24 * 3600;
+  const samples: TimedSample[] = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const tS = i;
+    samples[i] = {
+      t: tS,
+      rxS: tS,
+      extra: {},
+      vbatV: 13.5 + 0.1 * Math.sin(i / 5000),
+      ibatA: 0.2 + 0.05 * Math.sin(i / 777),
+      tempC: 20 + 5 * Math.sin(i / 43200),
+      vinV: 18,
+      iinA: 0.3,
+    };
+  }
+  const events: EngineEvent[] = [{ type: 'phase', t: 0, phase: 'done' }];
+  const started = performance.now();
+  const html = buildRunReport({
+    profile,
+    samples,
+    events,
+    summary: { durationS: n - 1, ah: 1, wh: 13, phaseS: { done: n - 1 }, lines: n, rejected: 0 },
+    diagnosis: diagnose({ profile, samples, events }),
+  });
+  t.diagnostic(
+    `report of ${n} samples: ${(performance.now() - started).toFixed(0)} ms, ${(html.length / 1e6).toFixed(2)} MB`,
+  );
+  for (const chart of embeddedData(html).charts) {
+    for (const s of chart.series)
+      assert.ok(s.xy.length / 2 <= 2100, `${chart.id} ${s.label}: ${s.xy.length / 2} points`);
+  }
+});
+
+test('text from the profile and the alarms is escaped', () => {
+  const profile = profileFromChemistry('li-ion', 1, {});
+  const named = { ...profile, name: '<img src=x onerror=alert(1)> shed light' };
+  const samples: TimedSample[] = [0, 1, 2].map((t) => ({ t, rxS: t, extra: {}, vbatV: 3.9, ibatA: 0.5 }));
+  const events: EngineEvent[] = [
+    { type: 'phase', t: 0, phase: 'cc' },
+    { type: 'alarm', t: 1, code: 'stall', level: 'warn', message: '</script><b>bold</b>' },
+  ];
+  const html = buildRunReport({
+    profile: named,
+    samples,
+    events,
+    summary: { durationS: 2, ah: 0, wh: 0, phaseS: { cc: 2 }, lines: 3, rejected: 0 },
+    diagnosis: diagnose({ profile: named, samples, events }),
+  });
+  assert.ok(!html.includes('<img src=x'), 'profile name escaped');
+  assert.ok(html.includes('&lt;img src=x onerror=alert(1)&gt; shed light'));
+  assert.ok(!html.includes('</script><b>'), 'alarm message escaped');
+});
+
+test('the report of a recorded run, read from a real SQLite file as the app asks for it', async (t) => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-report-db-'));
+  t.after(() => rmSync(dir, { recursive: true, force: true }));
+  const dbPath = join(dir, 'bench.sqlite');
+  const scenario = getScenario('damaged-cell');
+  const parsed = parseProfile(scenario.profile);
+  assert.ok(parsed.ok);
+  const recorder = openRecorder(dbPath);
+  const startRxS = 1_780_000_000;
+  const { runId } = recorder.startRun({
+    stationId: 'bench-1',
+    stationLabel: 'bench 1',
+    profileName: parsed.profile.name,
+    chemistry: parsed.profile.chemistry,
+    profileJson: scenario.profile,
+    startRxS,
+  });
+  const pipeline = createPipeline(parsed.profile);
+  let rxS = startRxS;
+  for (const text of simulatedLines(scenario.name, { shape: 'kv', sampleIntervalS: 1, seed: 5 })) {
+    const out = pipeline.pushLine(text, rxS, false);
+    recorder.addLine(runId, { rxS, text, kind: out.result.kind });
+    if (out.sample) recorder.addSample(runId, out.sample);
+    for (const e of out.events) recorder.addEvent(runId, e);
+    rxS += 1;
+  }
+  recorder.endRun(runId, rxS, 'completed', pipeline.summary());
+  recorder.close();
+
+  const reader = openRunReader(dbPath);
+  t.after(() => reader.close());
+  const html = await buildRunReport(reader, runId);
+  for (const id of SECTIONS) assert.ok(html.includes(`id="${id}"`), `section ${id}`);
+  assert.match(html, /Run 1: bench 1/);
+  assert.match(html, /id="cause-damaged-cell"/);
+  assert.match(html, /precondition-timeout/);
+});
+
+test('renderReportPdf says clearly when no Chromium exists', async (t) => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-nopdf-'));
+  t.after(() => rmSync(dir, { recursive: true, force: true }));
+  const htmlPath = join(dir, 'r.html');
+  writeFileSync(htmlPath, '<!doctype html><p>x</p>');
+  await assert.rejects(
+    renderReportPdf(htmlPath, join(dir, 'r.pdf'), { executablePath: join(dir, 'no-chromium') }),
+    (err) => {
+      assert.ok(err instanceof NoChromiumError);
+      assert.match(err.message, /no Chromium found/);
+      assert.match(err.message, /HTML report was kept/);
+      return true;
+    },
+  );
+  assert.equal(existsSync(join(dir, 'r.pdf')), false);
+});

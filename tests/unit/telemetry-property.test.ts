@@ -1,0 +1,220 @@
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import fc from 'fast-check';
+import { appendChecksum } from '../../shared/telemetry/checksum';
+import { LineFramer } from '../../shared/telemetry/framer';
+import { createLineParser } from '../../shared/telemetry/parse-line';
+import { MAX_LINE_BYTES, type LineResult, type ParserOptions } from '../../shared/telemetry/types';
+
+const OPTIONS: ParserOptions = {
+  fields: { vbat: { key: 'vb', unit: 'mV' } },
+  thermistor: { model: 'beta', r25: 10000, beta: 3435, pullupOhm: 10000, adcMax: 4095 },
+};
+
+interface Tally {
+  framed: number;
+  sample: number;
+  rejected: number;
+  blank: number;
+  firmware: number;
+  header: number;
+}
+
+function run(chunks: Uint8Array[], maxBytes?: number): Tally {
+  const parser = createLineParser(OPTIONS);
+  const tally: Tally = { framed: 0, sample: 0, rejected: 0, blank: 0, firmware: 0, header: 0 };
+  const framer = new LineFramer((text, tooLong) => {
+    tally.framed++;
+    const result: LineResult = parser.parse(text, tally.framed, tooLong);
+    tally[result.kind]++;
+    if (result.kind === 'rejected') assert.ok(result.detail.length > 0, 'a rejection says why');
+    if (tooLong) assert.equal(result.kind, 'rejected');
+  }, maxBytes);
+  for (const c of chunks) {
+    framer.push(c);
+    assert.ok(framer.bufferedBytes <= (maxBytes ?? MAX_LINE_BYTES) + 1);
+  }
+  framer.end();
+  return tally;
+}
+
+const accounted = (t: Tally) => t.sample + t.rejected + t.blank + t.firmware + t.header;
+
+// Bytes that look like telemetry often enough to reach every branch of the parser.
+const tokenArb = fc.oneof(
+  fc.constantFrom(
+    't=1 ',
+    'vbat=8.2 ',
+    'vb=8214 ',
+    'ibat=598mA ',
+    'ntc=4095 ',
+    'chg=1 ',
+    'src=panel ',
+    'x=abc ',
+    't,vbat,ibat\n',
+    '1,2,3\n',
+    '{"vbat":8.1}\n',
+    '{"t":',
+    '# boot\n',
+    '*2A',
+    '*00\n',
+    '\r\n',
+    '\n',
+    ',',
+    ';',
+    '"',
+    '=',
+    '°C',
+  ),
+  fc.uint8Array({ maxLength: 12 }).map((b) => String.fromCharCode(...b)),
+);
+const streamArb = fc
+  .array(tokenArb, { maxLength: 60 })
+  .map((parts) => new TextEncoder().encode(parts.join('')));
+
+test('random bytes through framer and parser: never throws, every framed line is accounted for', () => {
+  fc.assert(
+    fc.property(
+      fc.oneof(streamArb, fc.uint8Array({ maxLength: 600 })),
+      fc.integer({ min: 1, max: 64 }),
+      fc.integer({ min: 8, max: 200 }),
+      (bytes, chunkSize, maxBytes) => {
+        const chunks: Uint8Array[] = [];
+        for (let pos = 0; pos < bytes.length; pos += chunkSize)
+          chunks.push(bytes.subarray(pos, pos + chunkSize));
+        const tally = run(chunks, maxBytes);
+        assert.equal(accounted(tally), tally.framed);
+        // PROTOCOL 1: one line per newline, plus a last unterminated one.
+        const newlines = bytes.reduce((n, b) => n + (b === 10 ? 1 : 0), 0);
+        const tail = bytes.length > 0 && bytes[bytes.length - 1] !== 10 ? 1 : 0;
+        assert.equal(tally.framed, newlines + tail);
+      },
+    ),
+    { numRuns: 3000 },
+  );
+});
+
+test('the parser alone never throws on any string, with any flags', () => {
+  const parser = createLineParser(OPTIONS);
+  fc.assert(
+    fc.property(fc.string({ unit: 'binary', maxLength: 200 }), fc.boolean(), (text, tooLong) => {
+      const result = parser.parse(text, 0, tooLong);
+      assert.ok(['sample', 'rejected', 'blank', 'firmware', 'header'].includes(result.kind));
+    }),
+    { numRuns: 5000 },
+  );
+});
+
+test('a 10 MB burst without newline keeps memory bounded and costs one rejected line', () => {
+  const burst = new Uint8Array(10 * 1024 * 1024).fill(0x37); // '7' repeated: no newline
+  const chunks: Uint8Array[] = [];
+  for (let pos = 0; pos < burst.length; pos += 16384) chunks.push(burst.subarray(pos, pos + 16384));
+  chunks.push(new TextEncoder().encode('\nvbat=8.2\n'));
+  const tally = run(chunks); // asserts bufferedBytes <= 4097 after every chunk (PROTOCOL 1: 4096-byte lines)
+  assert.deepEqual(tally, { framed: 2, sample: 1, rejected: 1, blank: 0, firmware: 0, header: 0 });
+});
+
+test('the fast key=value path and the general scan give the same result', () => {
+  // A line with one kind of separator takes the fast path; the same pairs joined by
+  // ", " (two kinds) take the general scan. Both must read the same sample or rejection.
+  const keyArb = fc.constantFrom(
+    't',
+    'vbat',
+    'vb',
+    'ibat',
+    'temp',
+    'ntc',
+    'chg',
+    'flt',
+    'src',
+    'Vin',
+    'duty',
+    'x_1',
+  );
+  const valueArb = fc.oneof(
+    fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
+    fc.integer({ min: -5000, max: 5000 }).map(String),
+    fc.constantFrom(
+      '0',
+      '1',
+      'true',
+      'panel',
+      'none',
+      '8214mV',
+      '598mA',
+      '27.1°C',
+      '10k',
+      'abc',
+      '3V',
+      '',
+      '1e3',
+      '.5',
+    ),
+  );
+  fc.assert(
+    fc.property(fc.array(fc.tuple(keyArb, valueArb), { minLength: 1, maxLength: 10 }), (pairs) => {
+      const tokens = pairs.map(([k, v]) => `${k}=${v}`);
+      const fast = createLineParser(OPTIONS).parse(tokens.join(' '), 5);
+      const general = createLineParser(OPTIONS).parse(tokens.join(', '), 5);
+      assert.deepEqual(fast, general);
+    }),
+    { numRuns: 3000 },
+  );
+});
+
+test('the fast CSV row path and the CSV library path give the same result', () => {
+  // An unquoted row takes the fast path; the same cells each in quotes go through csv-parse.
+  const cellArb = fc.oneof(
+    fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
+    fc.constantFrom('0', '1', '', ' 2.5 ', '8214mV', 'abc', '3V', 'panel', '-0', '4095'),
+  );
+  const header = 't,vb,ibat,ntc,chg,src,duty';
+  fc.assert(
+    fc.property(fc.array(cellArb, { minLength: 2, maxLength: 9 }), (cells) => {
+      fc.pre(!/^[A-Za-z_]/.test(cells[0].trim())); // a row starting with a word may be a header
+      const fastParser = createLineParser(OPTIONS);
+      const libParser = createLineParser(OPTIONS);
+      fastParser.parse(header, 0);
+      libParser.parse(header, 0);
+      const fast = fastParser.parse(cells.join(','), 1);
+      const lib = libParser.parse(cells.map((c) => `"${c.trim()}"`).join(','), 1);
+      assert.deepEqual(fast, lib);
+    }),
+    { numRuns: 3000 },
+  );
+});
+
+test('a control byte anywhere in an otherwise good line makes it not-text', () => {
+  const lines = [
+    't=812.5 vbat=8.214 ibat=0.598 temp=27.1 vin=17.9 iin=0.31 chg=1 flt=0',
+    'vb=8214,ibat=0.5,duty=0.4',
+    '812.5,8.214,0.598',
+    '{"vbat":8.1,"src":"panel"}',
+    '# firmware says hi',
+  ];
+  const controlArb = fc.oneof(
+    fc.integer({ min: 0, max: 8 }),
+    fc.integer({ min: 11, max: 31 }),
+    fc.integer({ min: 127, max: 159 }),
+    fc.constant(0xfffd),
+  );
+  fc.assert(
+    fc.property(
+      fc.constantFrom(...lines),
+      fc.nat(),
+      controlArb,
+      fc.boolean(),
+      (line, at, code, withChecksum) => {
+        const parser = createLineParser(OPTIONS);
+        parser.parse('t,vbat,ibat', 0);
+        const pos = at % (line.length + 1);
+        let bad = line.slice(0, pos) + String.fromCharCode(code) + line.slice(pos);
+        if (withChecksum) bad = appendChecksum(bad);
+        const result = parser.parse(bad, 0);
+        assert.equal(result.kind, 'rejected', JSON.stringify(bad));
+        assert.equal((result as { reason: string }).reason, 'not-text', JSON.stringify(bad));
+      },
+    ),
+    { numRuns: 3000 },
+  );
+});
