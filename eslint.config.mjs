@@ -5,8 +5,27 @@ import tseslint from 'typescript-eslint';
 import globals from 'globals';
 
 const nodeBuiltins = [
-  'fs', 'path', 'os', 'child_process', 'net', 'http', 'https', 'stream', 'worker_threads', 'crypto',
-  'events', 'timers', 'util', 'url', 'readline', 'zlib', 'dgram', 'dns', 'tls', 'process', 'buffer',
+  'fs',
+  'path',
+  'os',
+  'child_process',
+  'net',
+  'http',
+  'https',
+  'stream',
+  'worker_threads',
+  'crypto',
+  'events',
+  'timers',
+  'util',
+  'url',
+  'readline',
+  'zlib',
+  'dgram',
+  'dns',
+  'tls',
+  'process',
+  'buffer',
 ];
 const noNode = nodeBuiltins.flatMap((m) => [m, `node:${m}`, `${m}/*`, `node:${m}/*`]);
 
@@ -32,11 +51,23 @@ export default tseslint.config(
           })),
           patterns: [
             { group: ['**/main/**', '../main/*', '../../main/*'], message: 'shared/ must not import main/.' },
-            { group: ['**/renderer/**', '../renderer/*', '../../renderer/*'], message: 'shared/ must not import renderer/.' },
+            {
+              group: ['**/renderer/**', '../renderer/*', '../../renderer/*'],
+              message: 'shared/ must not import renderer/.',
+            },
           ],
         },
       ],
-      'no-restricted-globals': ['error', 'window', 'document', 'process', 'require', 'Buffer', 'setTimeout', 'setInterval'],
+      'no-restricted-globals': [
+        'error',
+        'window',
+        'document',
+        'process',
+        'require',
+        'Buffer',
+        'setTimeout',
+        'setInterval',
+      ],
     },
   },
   {
@@ -46,8 +77,16 @@ export default tseslint.config(
       'no-restricted-imports': [
         'error',
         {
-          paths: [...noNode, 'electron'].map((name) => ({ name, message: 'The renderer runs sandboxed: no Node or Electron imports.' })),
-          patterns: [{ group: ['**/main/**', '../main/*', '../../main/*'], message: 'renderer/ must not import main/.' }],
+          paths: [...noNode, 'electron'].map((name) => ({
+            name,
+            message: 'The renderer runs sandboxed: no Node or Electron imports.',
+          })),
+          patterns: [
+            {
+              group: ['**/main/**', '../main/*', '../../main/*'],
+              message: 'renderer/ must not import main/.',
+            },
+          ],
         },
       ],
     },

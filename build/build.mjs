@@ -10,7 +10,15 @@ const out = join(root, 'dist');
 const started = Date.now();
 
 // Native and Electron modules stay outside the bundles: they load from node_modules.
-const nodeExternal = ['electron', 'better-sqlite3', 'serialport', '@serialport/*', 'bufferutil', 'utf-8-validate'];
+const nodeExternal = [
+  'electron',
+  'better-sqlite3',
+  'serialport',
+  '@serialport/*',
+  'bufferutil',
+  'utf-8-validate',
+  'playwright-core',
+];
 
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', absWorkingDir: root };
 

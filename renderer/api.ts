@@ -2,9 +2,9 @@
  * The renderer's one way to the backend: the Electron preload bridge when present, else the
  * WebSocket of `taperline serve` (same envelopes, shared/ipc), reconnecting when it drops.
  */
-import { WS_PATH } from '../shared/ipc/channels';
-import type { PushEnvelope } from '../shared/ipc/pushes';
-import type { ReplyEnvelope, RequestMethod, RequestParams } from '../shared/ipc/requests';
+import { WS_PATH } from '@shared/ipc/channels';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { ReplyEnvelope, RequestMethod, RequestParams } from '@shared/ipc/requests';
 
 export interface TaperlineBridge {
   request(method: string, params: unknown): Promise<unknown>;
@@ -98,7 +98,11 @@ function webSocketApi(token: string | null): Api {
       // Requests in flight are lost with the socket: say so instead of hanging.
       for (const [id, p] of pending) {
         window.clearTimeout(p.timer);
-        p.reject(new Error('The connection to the Taperline backend dropped before it answered; reconnecting. Try again in a moment.'));
+        p.reject(
+          new Error(
+            'The connection to the Taperline backend dropped before it answered; reconnecting. Try again in a moment.',
+          ),
+        );
         pending.delete(id);
       }
       setState('closed');

@@ -36,7 +36,8 @@ function start(): void {
       if (previous !== current) views[previous]?.hide();
       views[current].show(target);
       document.title = `Taperline · ${navLabel(current)}`;
-      if (window.location.hash !== `#${current}`) history.replaceState(null, '', `${window.location.search}#${current}`);
+      if (window.location.hash !== `#${current}`)
+        history.replaceState(null, '', `${window.location.search}#${current}`);
     },
   };
 
@@ -67,7 +68,11 @@ function start(): void {
   store.on('connection', (state) => {
     linkState.className = `link-state link-${state}`;
     linkState.textContent =
-      state === 'open' ? `● Connected${api.mode === 'electron' ? '' : ' (browser)'}` : state === 'connecting' ? '○ Connecting…' : '✖ Backend unreachable, retrying…';
+      state === 'open'
+        ? `● Connected${api.mode === 'electron' ? '' : ' (browser)'}`
+        : state === 'connecting'
+          ? '○ Connecting…'
+          : '✖ Backend unreachable, retrying…';
   });
   const strip = byId('problem-strip');
   store.on('problem', (p) => {
@@ -75,7 +80,11 @@ function start(): void {
     strip.className = `problem-strip problem-${p.level}`;
     strip.replaceChildren(
       h('span', { class: 'level-icon', 'aria-hidden': 'true' }, p.level === 'critical' ? '✖' : '▲'),
-      h('span', {}, `${p.level === 'critical' ? 'Critical' : 'Warning'}${p.stationId ? ` (${p.stationId})` : ''}: ${p.message}`),
+      h(
+        'span',
+        {},
+        `${p.level === 'critical' ? 'Critical' : 'Warning'}${p.stationId ? ` (${p.stationId})` : ''}: ${p.message}`,
+      ),
       button('Dismiss', () => (strip.hidden = true), { class: 'btn btn-small btn-quiet' }),
     );
   });
@@ -88,7 +97,14 @@ function start(): void {
 }
 
 function navLabel(view: ViewName): string {
-  return { bench: 'Bench', rack: 'Rack', runs: 'Runs', feed: 'Line feed', connect: 'Connect & profile', diagnosis: 'Diagnosis' }[view];
+  return {
+    bench: 'Bench',
+    rack: 'Rack',
+    runs: 'Runs',
+    feed: 'Line feed',
+    connect: 'Connect & profile',
+    diagnosis: 'Diagnosis',
+  }[view];
 }
 
 if (document.readyState === 'loading') document.addEventListener('DOMContentLoaded', start);

@@ -2,7 +2,7 @@
  * The benchmark's test hook, present only with `?bench=1`: loads a long invented run (demo
  * data, no real pack) into a station of its own and times the Bench view's redraws.
  */
-import type { EngineEvent } from '../shared/engine/types';
+import type { EngineEvent } from '@shared/engine/types';
 import type { BenchView } from './views/bench';
 import type { Navigator } from './router';
 import { StationModel, type Store } from './store';
@@ -33,13 +33,30 @@ function demoView(n: number): StationView {
     sourceLabel: 'benchmark hook',
     source: { state: 'open', detail: 'invented data for the chart benchmark' },
     runId: null,
-    profile: { name: 'invented 3S pack', chemistry: 'li-ion', cells: 3, inputSetpointV: null, tempWindowC: [0, 45] } as StationView['profile'],
+    profile: {
+      name: 'invented 3S pack',
+      chemistry: 'li-ion',
+      cells: 3,
+      inputSetpointV: null,
+      tempWindowC: [0, 45],
+    } as StationView['profile'],
     state: {
       t: n - 1,
       phase: 'done',
       phaseSinceT: n * 0.9,
       last: null,
-      metrics: { ah: 0, wh: 0, sourceWh: null, efficiency: null, socPct: null, etaS: null, etaCcS: null, etaCvS: null, internalResistanceOhm: null, mpptErrorFraction: null },
+      metrics: {
+        ah: 0,
+        wh: 0,
+        sourceWh: null,
+        efficiency: null,
+        socPct: null,
+        etaS: null,
+        etaCcS: null,
+        etaCvS: null,
+        internalResistanceOhm: null,
+        mpptErrorFraction: null,
+      },
       activeAlarms: [],
     },
     lines: n,
@@ -64,10 +81,13 @@ export function installBenchHook(store: Store, bench: BenchView, nav: Navigator)
       for (let t = 0; t < n; t++) {
         const progress = Math.min(1, t / ccEnd);
         const vbat = 10.5 + 2.1 * progress + noise() * 0.01;
-        const ibat = t < ccEnd ? 1 + noise() * 0.01 : Math.max(0.05, Math.exp(-(t - ccEnd) / (n * 0.15))) + noise() * 0.005;
-        const temp = 24 + 4 * Math.sin(t / 86400 * Math.PI * 2) + noise() * 0.2;
-        const vin = 15 + 3 * Math.sin(t / 86400 * Math.PI * 2 + 1) + noise() * 0.05;
-        model.series.append(t, vbat, ibat, temp, vin, vin * (ibat * vbat / vin / 0.9));
+        const ibat =
+          t < ccEnd
+            ? 1 + noise() * 0.01
+            : Math.max(0.05, Math.exp(-(t - ccEnd) / (n * 0.15))) + noise() * 0.005;
+        const temp = 24 + 4 * Math.sin((t / 86400) * Math.PI * 2) + noise() * 0.2;
+        const vin = 15 + 3 * Math.sin((t / 86400) * Math.PI * 2 + 1) + noise() * 0.05;
+        model.series.append(t, vbat, ibat, temp, vin, vin * ((ibat * vbat) / vin / 0.9));
       }
       const events: EngineEvent[] = [
         { type: 'phase', t: 0, phase: 'cc' },

@@ -2,7 +2,11 @@
 type Attrs = Record<string, string | number | boolean | null | undefined>;
 type Child = Node | string | null | undefined | false;
 
-export function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = {}, ...children: Child[]): HTMLElementTagNameMap[K] {
+export function h<K extends keyof HTMLElementTagNameMap>(
+  tag: K,
+  attrs: Attrs = {},
+  ...children: Child[]
+): HTMLElementTagNameMap[K] {
   const el = document.createElement(tag);
   for (const [name, value] of Object.entries(attrs)) {
     if (value === null || value === undefined || value === false) continue;
@@ -10,11 +14,16 @@ export function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = 
     else if (name === 'text') el.textContent = String(value);
     else el.setAttribute(name, value === true ? '' : String(value));
   }
-  for (const child of children) if (child !== null && child !== undefined && child !== false) el.append(child);
+  for (const child of children)
+    if (child !== null && child !== undefined && child !== false) el.append(child);
   return el;
 }
 
-export function button(label: string, onClick: (e: MouseEvent) => void, attrs: Attrs = {}): HTMLButtonElement {
+export function button(
+  label: string,
+  onClick: (e: MouseEvent) => void,
+  attrs: Attrs = {},
+): HTMLButtonElement {
   const b = h('button', { type: 'button', ...attrs }, label);
   b.addEventListener('click', onClick);
   return b;

@@ -12,11 +12,14 @@ export class FeedRing {
     for (const row of rows) this.rows.push(row);
     this.total += rows.length;
     // Trim in chunks: one splice per ~10 % overflow instead of a shift per line.
-    if (this.rows.length > LINE_FEED_LIMIT * 1.1) this.rows = this.rows.slice(this.rows.length - LINE_FEED_LIMIT);
+    if (this.rows.length > LINE_FEED_LIMIT * 1.1)
+      this.rows = this.rows.slice(this.rows.length - LINE_FEED_LIMIT);
   }
 
   all(): readonly FeedRow[] {
-    return this.rows.length > LINE_FEED_LIMIT ? this.rows.slice(this.rows.length - LINE_FEED_LIMIT) : this.rows;
+    return this.rows.length > LINE_FEED_LIMIT
+      ? this.rows.slice(this.rows.length - LINE_FEED_LIMIT)
+      : this.rows;
   }
 
   clear(): void {

@@ -1,5 +1,5 @@
 /** Display formatting: durations on the run's time axis, numbers with their units. */
-import type { Phase } from '../shared/engine/types';
+import type { Phase } from '@shared/engine/types';
 
 /** Seconds of run -> `h:mm` (or `d h:mm` past a day), the label format of every time axis. */
 export function formatRunTime(tS: number): string {

@@ -3,17 +3,26 @@
  * engine events, recent lines and problems. It only stores and forwards; phases, alarms and
  * metrics come from the backend as they are.
  */
-import type { AlarmEvent, EngineEvent } from '../shared/engine/types';
-import type { PushEnvelope, SampleBatch } from '../shared/ipc/pushes';
+import type { AlarmEvent, EngineEvent } from '@shared/engine/types';
+import type { PushEnvelope, SampleBatch } from '@shared/ipc/pushes';
 import type { Api, ConnectionState } from './api';
 import { Hub } from './events';
 import { FeedRing } from './feed-ring';
 import { LocalSeries } from './charts/local-series';
-import { RingBuffer } from '../shared/series';
+import { RingBuffer } from '@shared/series';
 
 /** Samples of pack voltage a Rack tile's sparkline shows (the live tail only). */
 export const SPARK_SAMPLES = 900;
-import { readEvents, readFeedLines, readSamples, readStation, readStations, type FeedRow, type PlotSample, type StationView } from './wire';
+import {
+  readEvents,
+  readFeedLines,
+  readSamples,
+  readStation,
+  readStations,
+  type FeedRow,
+  type PlotSample,
+  type StationView,
+} from './wire';
 
 export interface AlarmAckRef {
   code: string;
@@ -72,7 +81,8 @@ export class StationModel {
     // The snapshot is the authority on what is active now (events may have been trimmed).
     const activeNow = new Set(this.view.state.activeAlarms.map((a) => `${a.code}@${a.t}`));
     for (const a of this.view.state.activeAlarms) {
-      if (!out.some((r) => r.alarm.code === a.code && r.alarm.t === a.t)) out.push({ alarm: a, active: true, clearedT: null, acked: false });
+      if (!out.some((r) => r.alarm.code === a.code && r.alarm.t === a.t))
+        out.push({ alarm: a, active: true, clearedT: null, acked: false });
     }
     for (const row of out) {
       row.active = activeNow.has(`${row.alarm.code}@${row.alarm.t}`);
@@ -84,6 +94,13 @@ export class StationModel {
   /** Active alarms nobody acknowledged yet. */
   unackedActive(): AlarmEvent[] {
     return this.view.state.activeAlarms.filter((a) => !this.isAcked(a));
+  }
+
+  /** Hold pushes again until a fresh history reply arrives (after a reconnect). */
+  beginReload(view: StationView): void {
+    this.view = view;
+    this.acks = readAcks(view);
+    this.early ??= { batches: [], events: [] };
   }
 
   applyHistory(raw: unknown): void {
@@ -110,7 +127,8 @@ export class StationModel {
   private appendSamples(samples: PlotSample[]): void {
     const lastT = this.series.lastT ?? -Infinity;
     this.series.appendSamples(samples);
-    for (const s of samples) if (s.t > lastT && s.vbatV !== null && s.vbatV !== undefined) this.spark.push(s.t, s.vbatV);
+    for (const s of samples)
+      if (s.t > lastT && s.vbatV !== null && s.vbatV !== undefined) this.spark.push(s.t, s.vbatV);
   }
 
   addEvent(event: EngineEvent): void {
@@ -119,7 +137,13 @@ export class StationModel {
       return;
     }
     const last = this.events[this.events.length - 1];
-    if (last && last.t === event.t && last.type === event.type && JSON.stringify(last) === JSON.stringify(event)) return;
+    if (
+      last &&
+      last.t === event.t &&
+      last.type === event.type &&
+      JSON.stringify(last) === JSON.stringify(event)
+    )
+      return;
     this.events.push(event);
   }
 
@@ -179,13 +203,20 @@ export class Store extends Hub<StoreEvents> {
       const seen = new Set(views.map((v) => v.id));
       for (const id of [...this.stations.keys()]) if (!seen.has(id)) this.stations.delete(id);
       for (const view of views) {
-        const model = new StationModel(view);
+        // Keep the model a view may hold (a reconnect): refill it rather than replace it.
+        const existing = this.stations.get(view.id);
+        const model = existing ?? new StationModel(view);
+        if (existing) existing.beginReload(view);
         this.stations.set(view.id, model);
         void this.loadHistory(model);
       }
       this.emit('stations');
     } catch (err) {
-      this.addProblem({ stationId: null, level: 'warn', message: `Could not list stations: ${String(err instanceof Error ? err.message : err)}` });
+      this.addProblem({
+        stationId: null,
+        level: 'warn',
+        message: `Could not list stations: ${String(err instanceof Error ? err.message : err)}`,
+      });
     }
   }
 
@@ -214,7 +245,9 @@ export class Store extends Hub<StoreEvents> {
   }
 
   sortedStations(): StationModel[] {
-    return [...this.stations.values()].sort((a, b) => troubleRank(b) - troubleRank(a) || a.view.id.localeCompare(b.view.id));
+    return [...this.stations.values()].sort(
+      (a, b) => troubleRank(b) - troubleRank(a) || a.view.id.localeCompare(b.view.id),
+    );
   }
 
   private handlePush(push: PushEnvelope): void {

@@ -7,9 +7,9 @@
  * Types that live in shared/ (run state, profile, engine events) are used as they are.
  */
 import { z } from 'zod';
-import type { ResolvedProfile } from '../shared/chemistry/types';
-import type { EngineEvent, RunState } from '../shared/engine/types';
-import type { RejectReason } from '../shared/telemetry/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { EngineEvent, RunState } from '@shared/engine/types';
+import type { RejectReason } from '@shared/telemetry/types';
 
 const sourceStatus = z.looseObject({
   state: z.enum(['connecting', 'open', 'lost', 'closed']),
@@ -23,7 +23,12 @@ const snapshotSchema = z.looseObject({
   source: sourceStatus,
   runId: z.number().nullable(),
   profile: z.looseObject({ name: z.string(), chemistry: z.string(), cells: z.number() }),
-  state: z.looseObject({ t: z.number(), phase: z.string(), phaseSinceT: z.number(), activeAlarms: z.array(z.unknown()) }),
+  state: z.looseObject({
+    t: z.number(),
+    phase: z.string(),
+    phaseSinceT: z.number(),
+    activeAlarms: z.array(z.unknown()),
+  }),
   lines: z.number(),
   rejected: z.number(),
   recording: z.looseObject({ ok: z.boolean(), problem: z.string().nullable() }),
@@ -52,7 +57,9 @@ export function readStation(raw: unknown): StationView {
 }
 
 export function readStations(raw: unknown): StationView[] {
-  const list = Array.isArray(raw) ? raw : z.looseObject({ stations: z.array(z.unknown()) }).parse(raw).stations;
+  const list = Array.isArray(raw)
+    ? raw
+    : z.looseObject({ stations: z.array(z.unknown()) }).parse(raw).stations;
   return list.map(readStation);
 }
 
@@ -100,7 +107,9 @@ export function readRuns(raw: unknown): RunListRow[] {
 }
 
 export function readRun(raw: unknown): RunListRow {
-  return runRowSchema.parse(raw && typeof raw === 'object' && 'run' in raw ? (raw as { run: unknown }).run : raw);
+  return runRowSchema.parse(
+    raw && typeof raw === 'object' && 'run' in raw ? (raw as { run: unknown }).run : raw,
+  );
 }
 
 export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
@@ -157,7 +166,14 @@ function columnsToSamples(obj: Record<string, unknown>): PlotSample[] {
   const tS = obj.tS as number[];
   const col = (name: string) => (Array.isArray(obj[name]) ? (obj[name] as (number | null)[]) : []);
   const [vbat, ibat, temp, vin, iin] = ['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA'].map(col);
-  return tS.map((t, i) => ({ t, vbatV: vbat[i], ibatA: ibat[i], tempC: temp[i], vinV: vin[i], iinA: iin[i] }));
+  return tS.map((t, i) => ({
+    t,
+    vbatV: vbat[i],
+    ibatA: ibat[i],
+    tempC: temp[i],
+    vinV: vin[i],
+    iinA: iin[i],
+  }));
 }
 
 const eventSchema = z.looseObject({ type: z.enum(['phase', 'alarm', 'alarm-clear', 'gap']), t: z.number() });

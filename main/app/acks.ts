@@ -3,7 +3,7 @@
  * agrees on which alarms a person has already seen. An ack names one raising of an alarm
  * (`code` and the `t` it was raised at): the same code raised again later is new.
  */
-import type { AlarmEvent, EngineEvent } from '../../shared/engine/types';
+import type { AlarmEvent, EngineEvent } from '@shared/engine/types';
 
 export interface AlarmAck {
   stationId: string;

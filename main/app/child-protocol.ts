@@ -4,8 +4,8 @@
  * Requests are validated in the Electron main process before they are relayed, and again by
  * the service in the child.
  */
-import type { PushEnvelope } from '../../shared/ipc/pushes';
-import type { ReplyEnvelope, RequestEnvelope } from '../../shared/ipc/requests';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { ReplyEnvelope, RequestEnvelope } from '@shared/ipc/requests';
 
 export type ParentToChild =
   | { type: 'request'; envelope: RequestEnvelope }

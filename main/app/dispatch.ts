@@ -3,7 +3,7 @@
  * IPC relay and the backend child process. Every message goes through `validateRequest`;
  * nothing a client sends can throw past this function.
  */
-import { validateRequest, type ReplyEnvelope } from '../../shared/ipc/requests';
+import { validateRequest, type ReplyEnvelope } from '@shared/ipc/requests';
 import type { AppService } from './service';
 
 /** Id used in a reply when the request carried no usable id. */

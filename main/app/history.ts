@@ -4,8 +4,8 @@
  * HISTORY_STEP_S of run time and kept in typed arrays that grow on demand, up to
  * HISTORY_MAX_SAMPLES (7 days at 1 Hz); past that the oldest half is dropped.
  */
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
-import type { SampleBatch } from '../../shared/ipc/pushes';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import type { SampleBatch } from '@shared/ipc/pushes';
 import type { FeedLine } from '../station/types';
 
 /** Run-time spacing of the kept samples: 1 Hz is finer than any Bench view plot needs. */

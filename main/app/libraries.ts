@@ -3,12 +3,12 @@
  * as wiring: profile parsing, the pipeline (for previews), diagnosis, scenarios, ports and
  * run reports. `realLibraries` binds the project's own implementations.
  */
-import { parseProfile } from '../../shared/chemistry/profile';
-import type { ProfileResult, ResolvedProfile } from '../../shared/chemistry/types';
-import { createPipeline, type LineOutcome } from '../../shared/engine/pipeline';
-import { diagnose } from '../../shared/engine/diagnosis';
-import type { Diagnosis, DiagnosisInput } from '../../shared/engine/diagnosis/types';
-import { listScenarios } from '../simulator/scenarios';
+import { parseProfile } from '@shared/chemistry/profile';
+import type { ProfileResult, ResolvedProfile } from '@shared/chemistry/types';
+import { createPipeline, type LineOutcome } from '@shared/engine/pipeline';
+import { diagnose } from '@shared/engine/diagnosis';
+import type { Diagnosis, DiagnosisInput } from '@shared/engine/diagnosis/types';
+import { getScenario, listScenarios } from '../simulator/scenarios';
 import { listPorts } from '../serial/list';
 import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
@@ -38,7 +38,8 @@ export const realLibraries: AppLibraries = {
     return lines.map((text, i) => pipeline.pushLine(text, rxS + i));
   },
   diagnose,
-  listScenarios: () => [...listScenarios()],
+  // Each scenario with its demo profile, so the Connect view can fill the form from it.
+  listScenarios: () => listScenarios().map((s) => ({ ...s, profile: getScenario(s.name).profile })),
   listPorts: async () => [...(await listPorts())],
   runReportHtml: async (recorder, runId) => buildRunReport(recorder, runId),
   async runReportPdf(recorder, runId) {

@@ -4,9 +4,9 @@
  * lines gathered into one batch per station per flush. Events, problems and acks are rare
  * and matter at once, so they are sent straight away by the service.
  */
-import { MAX_PUSHES_PER_SECOND } from '../../shared/ipc/channels';
-import type { PushEnvelope, SampleBatch } from '../../shared/ipc/pushes';
-import type { TimedSample } from '../../shared/engine/types';
+import { MAX_PUSHES_PER_SECOND } from '@shared/ipc/channels';
+import type { PushEnvelope, SampleBatch } from '@shared/ipc/pushes';
+import type { TimedSample } from '@shared/engine/types';
 import type { FeedLine } from '../station/types';
 
 /** Flush period: one snapshot and one batch per station per period at most. */

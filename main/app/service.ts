@@ -5,10 +5,10 @@
  * `validateRequest`; `handle` validates again so no caller can skip it.
  */
 import { EventEmitter } from 'node:events';
-import { requestSchemas, type RequestMethod } from '../../shared/ipc/requests';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
-import type { EngineEvent } from '../../shared/engine/types';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
+import { requestSchemas, type RequestMethod } from '@shared/ipc/requests';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { EngineEvent } from '@shared/engine/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { RunReader } from '../recorder/types';
 import type { StationManager, StationSnapshot } from '../station/types';
 import { AckBook, type AlarmAck } from './acks';
@@ -305,7 +305,7 @@ export function createAppService(options: AppServiceOptions): AppService {
   };
 }
 
-type P<M extends RequestMethod> = import('../../shared/ipc/requests').RequestParams<M>;
+type P<M extends RequestMethod> = import('@shared/ipc/requests').RequestParams<M>;
 type StationManagerListener<K extends keyof import('../station/types').StationManagerEvents> = (
   ...args: import('../station/types').StationManagerEvents[K]
 ) => void;

@@ -3,8 +3,8 @@
  * the same pipeline as a live port and explains its first fault (PROTOCOL sections 3 and 4).
  */
 import type { Command } from 'commander';
-import { diagnose, type Diagnosis } from '../../shared/engine/diagnosis';
-import { fmtT } from '../../shared/engine/diagnosis/format';
+import { diagnose, type Diagnosis } from '@shared/engine/diagnosis';
+import { fmtT } from '@shared/engine/diagnosis/format';
 import { collectRun } from '../report/collect-run';
 import { UsageError } from './errors';
 import { openLineInput } from './line-input';

@@ -2,7 +2,7 @@
  * Where replay and diagnose read lines from: a telemetry file, standard input, or a run of
  * a recording database (read back exactly as if from a file, with its receive times).
  */
-import type { ResolvedProfile } from '../../shared/chemistry/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
 import { UsageError } from './errors';
 import { readTelemetryLines, streamTelemetryLines, type TimedLine } from './read-lines';
 import { openRecordedRun } from './recorded-run';

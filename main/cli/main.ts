@@ -6,7 +6,9 @@ runCli(process.argv.slice(2)).then(
     process.exitCode = code;
   },
   (err: unknown) => {
-    process.stderr.write(`taperline: unexpected error: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}\n`);
+    process.stderr.write(
+      `taperline: unexpected error: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}\n`,
+    );
     process.exitCode = 1;
   },
 );

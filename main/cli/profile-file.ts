@@ -1,7 +1,7 @@
 /** Loads a profile JSON file for the CLI; every failure is one line naming the file and key. */
 import { readFileSync } from 'node:fs';
-import { parseProfile } from '../../shared/chemistry/profile';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import type { ResolvedProfile } from '@shared/chemistry/types';
 import { UsageError } from './errors';
 
 export function loadProfileFile(path: string): ResolvedProfile {
@@ -10,7 +10,11 @@ export function loadProfileFile(path: string): ResolvedProfile {
     text = readFileSync(path, 'utf8');
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
-    throw new UsageError(code === 'ENOENT' ? `no such profile file: ${path}` : `cannot read profile ${path}: ${(err as Error).message}`);
+    throw new UsageError(
+      code === 'ENOENT'
+        ? `no such profile file: ${path}`
+        : `cannot read profile ${path}: ${(err as Error).message}`,
+    );
   }
   let json: unknown;
   try {

@@ -7,7 +7,7 @@
  * `intervalS` (default 1 s) per line, the usual 1 Hz telemetry rate.
  */
 import { createReadStream, statSync } from 'node:fs';
-import { LineFramer } from '../../shared/telemetry/framer';
+import { LineFramer } from '@shared/telemetry/framer';
 import { UsageError } from './errors';
 
 export interface TimedLine {

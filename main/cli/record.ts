@@ -4,8 +4,8 @@
  */
 import { readFileSync } from 'node:fs';
 import type { Command } from 'commander';
-import { parseProfile } from '../../shared/chemistry/profile';
-import type { EngineEvent } from '../../shared/engine/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import type { EngineEvent } from '@shared/engine/types';
 import { defaultDbPath } from '../recorder/paths';
 import { openRecorder } from '../recorder/recorder';
 import { RecorderOpenError } from '../recorder/errors';

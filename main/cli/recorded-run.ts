@@ -8,7 +8,8 @@ import { resolveProfileJson } from './profile-file';
 function parseRunSelector(run: string): number | 'latest' {
   if (run === 'latest') return 'latest';
   const id = Number(run);
-  if (!Number.isInteger(id) || id <= 0) throw new UsageError(`--run must be a run id or latest (got "${run}")`);
+  if (!Number.isInteger(id) || id <= 0)
+    throw new UsageError(`--run must be a run id or latest (got "${run}")`);
   return id;
 }
 
@@ -19,12 +20,16 @@ export function openRecordedRun(dbPath: string, run: string): LineInput {
   try {
     reader = openRunReader(dbPath);
   } catch (err) {
-    throw new UsageError(err instanceof RecorderOpenError ? err.message : `cannot open ${dbPath}: ${String(err)}`);
+    throw new UsageError(
+      err instanceof RecorderOpenError ? err.message : `cannot open ${dbPath}: ${String(err)}`,
+    );
   }
   const runId = reader.resolveRunId(selector);
   if (runId === null) {
     reader.close();
-    throw new UsageError(selector === 'latest' ? `${dbPath} holds no runs` : `${dbPath} has no run ${selector}`);
+    throw new UsageError(
+      selector === 'latest' ? `${dbPath} holds no runs` : `${dbPath} has no run ${selector}`,
+    );
   }
   const profile = resolveProfileJson(reader.profileOf(runId), `the profile recorded with run ${runId}`);
   return {
@@ -38,7 +43,8 @@ export function openRecordedRun(dbPath: string, run: string): LineInput {
     },
     async *lines() {
       try {
-        for (const line of reader.lineIterator(runId)) yield { text: line.text, rxS: line.rxS, tooLong: line.tooLong === true };
+        for (const line of reader.lineIterator(runId))
+          yield { text: line.text, rxS: line.rxS, tooLong: line.tooLong === true };
       } finally {
         reader.close();
       }

@@ -1,5 +1,5 @@
 /** How replay prints events and the summary. */
-import type { EngineEvent, RunSummary } from '../../shared/engine/types';
+import type { EngineEvent, RunSummary } from '@shared/engine/types';
 
 const round = (value: number, digits: number) => Number(value.toFixed(digits));
 

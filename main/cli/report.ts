@@ -5,7 +5,7 @@
 import { writeFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
-import { diagnose } from '../../shared/engine/diagnosis';
+import { diagnose } from '@shared/engine/diagnosis';
 import { buildRunReport, collectRun, NoChromiumError, renderReportPdf } from '../report';
 import { UsageError } from './errors';
 import { openLineInput } from './line-input';

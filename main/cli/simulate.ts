@@ -10,8 +10,8 @@ import { join } from 'node:path';
 import type { Writable } from 'node:stream';
 import type { Command } from 'commander';
 import { SerialPort } from 'serialport';
-import { LineFramer } from '../../shared/telemetry/framer';
-import type { LineShape } from '../../shared/telemetry/format-line';
+import { LineFramer } from '@shared/telemetry/framer';
+import type { LineShape } from '@shared/telemetry/format-line';
 import {
   createSimulatorSource,
   getScenario,

@@ -5,8 +5,8 @@
  * `npm start` (TAPERLINE_NODE, set by bin/start.cjs), else `node` from PATH.
  */
 import { fork, type ChildProcess } from 'node:child_process';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
-import type { ReplyEnvelope, RequestEnvelope } from '../../shared/ipc/requests';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { ReplyEnvelope, RequestEnvelope } from '@shared/ipc/requests';
 import { isChildMessage, type ChildToParent, type ParentToChild } from '../app/child-protocol';
 
 /** Environment variable naming the Node executable that runs the backend. */

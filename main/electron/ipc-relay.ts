@@ -3,7 +3,7 @@
  * and its params with `validateRequest`, and only then relays it to the backend. A refused
  * message gets an error reply naming why; nothing a renderer sends can throw past here.
  */
-import { validateRequest, type ReplyEnvelope, type RequestEnvelope } from '../../shared/ipc/requests';
+import { validateRequest, type ReplyEnvelope, type RequestEnvelope } from '@shared/ipc/requests';
 import { checkIpcSender, type IpcSenderInfo } from './security';
 
 /** Sends a validated request to the backend and resolves with its reply. */

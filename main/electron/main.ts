@@ -17,8 +17,8 @@ import {
   session,
   type WebContents,
 } from 'electron';
-import { IPC_CHANNELS } from '../../shared/ipc/channels';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
+import { IPC_CHANNELS } from '@shared/ipc/channels';
+import type { PushEnvelope } from '@shared/ipc/pushes';
 import { startBackendProcess, type BackendProcess } from './backend-process';
 import { handleRendererRequest } from './ipc-relay';
 import { menuTemplate, SAFETY_CAUTION } from './menu';

@@ -3,7 +3,7 @@
  * which view to open) go to the renderer as a `command` push; Quit and About are handled here.
  */
 import type { MenuItemConstructorOptions } from 'electron';
-import type { AppCommand } from '../../shared/ipc/pushes';
+import type { AppCommand } from '@shared/ipc/pushes';
 
 /** Shown in Help > About and before a person sets limits. */
 export const SAFETY_CAUTION =

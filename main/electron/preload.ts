@@ -4,9 +4,9 @@
  * require `electron`.
  */
 import { contextBridge, ipcRenderer, type IpcRendererEvent } from 'electron';
-import { IPC_CHANNELS } from '../../shared/ipc/channels';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
-import type { ReplyEnvelope } from '../../shared/ipc/requests';
+import { IPC_CHANNELS } from '@shared/ipc/channels';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { ReplyEnvelope } from '@shared/ipc/requests';
 
 let nextId = 1;
 

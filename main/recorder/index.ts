@@ -1,5 +1,6 @@
 /** The recorder's public surface. */
-export { openRecorder, openRunReader, openDatabase, type RecorderOptions } from './recorder';
+export { openRecorder, type RecorderOptions } from './recorder';
+export { openDatabase, openRunReader } from './database';
 export { defaultDbPath, defaultDataDir } from './paths';
 export { RecorderOpenError, describeDbError } from './errors';
 export { migrate, MIGRATIONS, SCHEMA_VERSION } from './schema';

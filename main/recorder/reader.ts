@@ -2,8 +2,8 @@
 import type Database from 'better-sqlite3';
 import type { Writable } from 'node:stream';
 import { stringify } from 'csv-stringify';
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
-import type { SourceKind } from '../../shared/telemetry/types';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import type { SourceKind } from '@shared/telemetry/types';
 import type { FeedLine } from '../station/types';
 import { ROLLUP_LEVELS_S, SERIES_COLUMNS } from './schema';
 import type { OverviewBucket, RunEndReason, RunReader, RunRow, SeriesField } from './types';

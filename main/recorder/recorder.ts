@@ -2,27 +2,17 @@
  * The recording database: one SQLite file holding runs, samples, events and every raw
  * line. Writes are queued and committed in batches; reads go through the RunReader.
  */
-import Database from 'better-sqlite3';
 import { EventEmitter } from 'node:events';
-import { accessSync, constants as fsConstants, existsSync, mkdirSync, statSync } from 'node:fs';
-import { hostname } from 'node:os';
-import { dirname } from 'node:path';
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
+import { statSync } from 'node:fs';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import { closeInterruptedRuns, HOST } from './crash-recovery';
+import { openDatabase } from './database';
 import { describeDbError, RecorderOpenError } from './errors';
 import { defaultDbPath } from './paths';
 import { createRunReader } from './reader';
 import { RunRollup, slotFromRow, slotParams, type RollupSlot } from './rollup';
-import { migrate, SERIES_COLUMNS } from './schema';
-import type {
-  Recorder,
-  RecorderEvents,
-  RecorderHealth,
-  RunEndReason,
-  RunReader,
-  RunStart,
-  RunTotals,
-  StoredLine,
-} from './types';
+import { SERIES_COLUMNS } from './schema';
+import type { Recorder, RecorderHealth, RunEndReason, RunStart, RunTotals, StoredLine } from './types';
 
 export interface RecorderOptions {
   /** Longest time between commits. */
@@ -54,89 +44,6 @@ interface LiveRun {
   lastT: number;
 }
 
-const HOST = hostname();
-
-function pidAlive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (err) {
-    return (err as NodeJS.ErrnoException).code === 'EPERM';
-  }
-}
-
-/**
- * Open (or create) a recording database with the connection settings every Taperline
- * process uses. Throws RecorderOpenError with a sentence a person can act on.
- */
-export function openDatabase(
-  dbPath: string,
-  options: { readonly?: boolean; busyTimeoutMs?: number } = {},
-): Database.Database {
-  let db: Database.Database;
-  try {
-    if (!options.readonly) mkdirSync(dirname(dbPath), { recursive: true });
-    db = new Database(dbPath, {
-      readonly: options.readonly ?? false,
-      fileMustExist: options.readonly ?? false,
-    });
-  } catch (err) {
-    throw new RecorderOpenError(
-      `${describeDbError(folderProblem(dbPath) ?? err, dbPath)}; nothing was recorded — fix that or give another --db FILE`,
-    );
-  }
-  try {
-    // A lock held by another program is waited for briefly, never long enough to stall the live display.
-    db.pragma(`busy_timeout = ${options.busyTimeoutMs ?? 200}`);
-    if (!options.readonly) {
-      db.pragma('journal_mode = WAL');
-      // synchronous = FULL: in WAL mode NORMAL already survives a crash of the app, but a
-      // power cut (a bench power strip tripping during a week-long burn-in) can roll back
-      // every commit since the last checkpoint. Commits are batched (at most 4 a second
-      // while recording live), so the one fsync per commit that FULL costs is small.
-      db.pragma('synchronous = FULL');
-      db.pragma('journal_size_limit = 67108864');
-      // 16 MiB of page cache: a large batch (max-speed replay) commits without spilling pages early.
-      db.pragma('cache_size = -16384');
-      migrate(db);
-    }
-  } catch (err) {
-    db.close();
-    if (err instanceof RecorderOpenError) throw err;
-    const msg =
-      err instanceof Error && err.message.startsWith('the database was written')
-        ? `${dbPath}: ${err.message}`
-        : describeDbError(err, dbPath);
-    throw new RecorderOpenError(`${msg}; nothing was recorded — fix that or give another --db FILE`);
-  }
-  return db;
-}
-
-/** SQLite says only "cannot open"; the folder itself tells whether it is read-only. */
-function folderProblem(dbPath: string): NodeJS.ErrnoException | null {
-  const dir = dirname(dbPath);
-  if (!existsSync(dir)) return null;
-  try {
-    accessSync(existsSync(dbPath) ? dbPath : dir, fsConstants.W_OK);
-    return null;
-  } catch (err) {
-    return err as NodeJS.ErrnoException;
-  }
-}
-
-/** A reader of a recording database without the write side (replay, diagnose, report). */
-export function openRunReader(dbPath: string): RunReader & { close(): void } {
-  let db: Database.Database;
-  try {
-    db = openDatabase(dbPath);
-  } catch (err) {
-    // A read-only file is still readable; migrations were applied when it was written.
-    db = openDatabase(dbPath, { readonly: true });
-    void err;
-  }
-  return Object.assign(createRunReader(db), { close: () => db.close() });
-}
-
 /** Open the recording database at `dbPath` (default: the user's data folder). */
 export function openRecorder(dbPath: string = defaultDbPath(), options: RecorderOptions = {}): Recorder {
   const flushIntervalMs = options.flushIntervalMs ?? 250;
@@ -153,6 +60,10 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     insertRun: db.prepare(
       `INSERT INTO runs (id, station_id, station_label, profile_name, chemistry, profile_json, start_rx_s, writer_pid, writer_host)
        VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    ),
+    insertRunAuto: db.prepare(
+      `INSERT INTO runs (station_id, station_label, profile_name, chemistry, profile_json, start_rx_s, writer_pid, writer_host)
+       VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
     ),
     line: db.prepare(
       'INSERT INTO lines (run_id, rx_s, kind, text, reason, detail, too_long) VALUES (?, ?, ?, ?, ?, ?, ?)',
@@ -199,29 +110,14 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     ),
   };
 
-  // Runs left open by a process that no longer exists (crash, kill -9, power cut) end as interrupted.
-  const openRuns = db
-    .prepare<[], { id: number; writer_pid: number | null; writer_host: string | null }>(
-      'SELECT id, writer_pid, writer_host FROM runs WHERE end_reason IS NULL',
-    )
-    .all();
-  const closeInterrupted = db.prepare(
-    `UPDATE runs SET end_reason = 'interrupted', writer_pid = NULL, writer_host = NULL,
-       end_rx_s = coalesce((SELECT max(rx_s) FROM lines WHERE lines.run_id = runs.id), last_rx_s, start_rx_s),
-       lines = max(lines, (SELECT count(*) FROM lines WHERE lines.run_id = runs.id AND kind NOT IN ('sent'))),
-       rejected = max(rejected, (SELECT count(*) FROM lines WHERE lines.run_id = runs.id AND kind = 'rejected'))
-     WHERE id = ?`,
-  );
-  db.transaction(() => {
-    for (const r of openRuns) {
-      const live =
-        r.writer_pid !== null &&
-        r.writer_host === HOST &&
-        r.writer_pid !== process.pid &&
-        pidAlive(r.writer_pid);
-      if (!live) closeInterrupted.run(r.id);
-    }
-  })();
+  try {
+    closeInterruptedRuns(db);
+  } catch (err) {
+    db.close();
+    throw new RecorderOpenError(
+      `${describeDbError(err, dbPath)}; nothing was recorded — fix that or give another --db FILE`,
+    );
+  }
 
   let queue: Op[] = [];
   const pendingTotals = new Map<number, RunTotals>();
@@ -250,7 +146,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       }
       queue = keep;
     }
-    if (queue.length >= batchRows && problem === null) flush();
+    if (queue.length >= batchRows && problem === null) flush(false);
   }
 
   function writeOp(op: Op): void {
@@ -265,7 +161,11 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       }
       case 'sample': {
         const s = op.s;
-        const extraKeys = Object.keys(s.extra);
+        let hasExtra = false;
+        for (const _key in s.extra) {
+          hasExtra = true;
+          break;
+        }
         st.sample.run(
           op.runId,
           s.t,
@@ -281,7 +181,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
           s.chg === undefined ? null : s.chg ? 1 : 0,
           s.flt === undefined ? null : s.flt ? 1 : 0,
           s.src ?? null,
-          extraKeys.length > 0 ? JSON.stringify(s.extra) : null,
+          hasExtra ? JSON.stringify(s.extra) : null,
         );
         return;
       }
@@ -334,15 +234,41 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     if (walBytes > walCheckpointBytes) db.pragma('wal_checkpoint(TRUNCATE)');
   }
 
-  function flush(): void {
+  let syncMode: 'FULL' | 'NORMAL' = 'FULL';
+  let unsynced = false;
+  /**
+   * Group commit: a batch committed because it is large (max-speed replay) skips its fsync;
+   * the next timed or explicit commit fsyncs the WAL, which makes every earlier frame in it
+   * durable too. So a power cut still loses at most one flush interval, as in live recording.
+   */
+  function setSync(mode: 'FULL' | 'NORMAL'): void {
+    if (mode === syncMode) return;
+    db.pragma(`synchronous = ${mode}`);
+    syncMode = mode;
+  }
+
+  function flush(durable = true): void {
     if (closed) return;
     const hasWork = queue.length > 0 || pendingTotals.size > 0 || pendingLastRx.size > 0;
-    if (!hasWork) return;
+    if (!hasWork) {
+      if (durable && unsynced) {
+        // Nothing new to commit after a burst: a passive checkpoint fsyncs the WAL instead.
+        try {
+          db.pragma('wal_checkpoint(PASSIVE)');
+          unsynced = false;
+        } catch {
+          // Retried at the next flush.
+        }
+      }
+      return;
+    }
     const ops = queue;
     const partial: Array<[number, RollupSlot]> = [];
     for (const [runId, run] of live) for (const slot of run.rollup.partial()) partial.push([runId, slot]);
     try {
+      setSync(durable ? 'FULL' : 'NORMAL');
       commit(ops, partial);
+      unsynced = !durable;
       queue = [];
       pendingTotals.clear();
       pendingLastRx.clear();
@@ -413,35 +339,40 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
           return { runId: prev.id, resumed: true, lastRxS: endRx };
         }
       }
-      let maxId = lastAllocatedId;
+      const columns = [
+        start.stationId,
+        start.stationLabel,
+        start.profileName,
+        start.chemistry,
+        profileJson,
+        start.startRxS,
+        process.pid,
+        HOST,
+      ];
+      let runId: number;
       try {
-        maxId = Math.max(maxId, st.maxRunId.get()?.id ?? 0);
+        // The file picks the id, so two processes recording into one file never collide.
+        runId = Number(st.insertRunAuto.run(...columns).lastInsertRowid);
       } catch {
-        // Unreadable just now (locked): the in-memory counter is enough for this process.
+        // Cannot write just now (disk full, locked): take the next id in memory and queue the
+        // row with the rest, so the live station starts at once and its run is kept for retry.
+        let maxId = lastAllocatedId;
+        try {
+          maxId = Math.max(maxId, st.maxRunId.get()?.id ?? 0);
+        } catch {
+          // Unreadable too: the in-memory counter is all there is.
+        }
+        runId = maxId + 1;
+        enqueue({ kind: 'run', params: [runId, ...columns] });
       }
-      const runId = maxId + 1;
-      lastAllocatedId = runId;
+      lastAllocatedId = Math.max(lastAllocatedId, runId);
       live.set(runId, { seq: 0, rollup: new RunRollup(), lastRxS: null, lastT: -Infinity });
-      enqueue({
-        kind: 'run',
-        params: [
-          runId,
-          start.stationId,
-          start.stationLabel,
-          start.profileName,
-          start.chemistry,
-          profileJson,
-          start.startRxS,
-          process.pid,
-          HOST,
-        ],
-      });
-      flush();
       return { runId, resumed: false, lastRxS: null };
     },
     addLine(runId: number, line: StoredLine) {
       enqueue({ kind: 'line', runId, line });
-      pendingLastRx.set(runId, Math.max(pendingLastRx.get(runId) ?? 0, line.rxS));
+      const last = pendingLastRx.get(runId);
+      if (last === undefined || line.rxS > last) pendingLastRx.set(runId, line.rxS);
     },
     addSent(runId: number, sent: { text: string; rxS: number; t: number }) {
       enqueue({ kind: 'line', runId, line: { rxS: sent.rxS, text: sent.text, kind: 'sent' } });
@@ -497,5 +428,3 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
 
   return recorder;
 }
-
-export type { RecorderEvents };

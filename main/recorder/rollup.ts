@@ -1,5 +1,5 @@
 /** Per-slot min/max/sum/count of the canonical series, kept while a run is recorded. */
-import type { TimedSample } from '../../shared/engine/types';
+import type { TimedSample } from '@shared/engine/types';
 import { ROLLUP_LEVELS_S } from './schema';
 
 const FIELDS = ['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA'] as const;
@@ -25,19 +25,25 @@ export function emptySlot(levelS: number, idx: number): RollupSlot {
   };
 }
 
+function addValue(st: [number, number, number, number], v: number | undefined): void {
+  if (v === undefined || !Number.isFinite(v)) return;
+  if (v < st[0]) st[0] = v;
+  if (v > st[1]) st[1] = v;
+  st[2] += v;
+  st[3]++;
+}
+
+/** Field by field, in FIELDS order (written out: this runs for every sample at every level). */
 function addTo(slot: RollupSlot, s: TimedSample): void {
   slot.n++;
   if (s.t < slot.tMin) slot.tMin = s.t;
   if (s.t > slot.tMax) slot.tMax = s.t;
-  for (let i = 0; i < FIELDS.length; i++) {
-    const v = s[FIELDS[i]];
-    if (v === undefined || !Number.isFinite(v)) continue;
-    const st = slot.stats[i];
-    if (v < st[0]) st[0] = v;
-    if (v > st[1]) st[1] = v;
-    st[2] += v;
-    st[3]++;
-  }
+  const st = slot.stats;
+  addValue(st[0], s.vbatV);
+  addValue(st[1], s.ibatA);
+  addValue(st[2], s.tempC);
+  addValue(st[3], s.vinV);
+  addValue(st[4], s.iinA);
 }
 
 /** One run's open slots, one per level. `add` returns the slots it completed. */

@@ -1,6 +1,6 @@
 /** Contract of the SQLite recorder, read by the Runs view, replay, diagnose and report. */
 import type { Writable } from 'node:stream';
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { FeedLine } from '../station/types';
 
 export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';

@@ -2,9 +2,9 @@
  * The Run report: ONE self-contained HTML file (inline CSS, inline Chart.js, data as JSON),
  * readable on screen and in print, that makes no external request.
  */
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import type { Diagnosis } from '../../shared/engine/diagnosis';
-import type { EngineEvent, RunSummary, TimedSample } from '../../shared/engine/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { Diagnosis } from '@shared/engine/diagnosis';
+import type { EngineEvent, RunSummary, TimedSample } from '@shared/engine/types';
 import { chartJsSource, taperlineVersion } from './assets';
 import { REPORT_CHART_SCRIPT } from './chart-script';
 import { decimateColumns, seriesColumns } from './decimate';

@@ -3,8 +3,8 @@
  * shape (LTTB from shared/series), and breaks the line where telemetry stopped so a gap is
  * not drawn as a slope.
  */
-import type { TimedSample } from '../../shared/engine/types';
-import { lttbIndices } from '../../shared/series';
+import type { TimedSample } from '@shared/engine/types';
+import { lttbIndices } from '@shared/series';
 
 /** One field as columns, with the start index of each unbroken run. */
 export interface SeriesColumns {

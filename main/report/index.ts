@@ -2,9 +2,9 @@
  * The Run report's public surface: build the HTML from a run's data (or from a recorded run),
  * write it, print it to PDF.
  */
-import { parseProfile } from '../../shared/chemistry/profile';
-import { diagnose } from '../../shared/engine/diagnosis';
-import type { EngineEvent, Phase, RunSummary } from '../../shared/engine/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import { diagnose } from '@shared/engine/diagnosis';
+import type { EngineEvent, Phase, RunSummary } from '@shared/engine/types';
 import type { RunReader } from '../recorder/types';
 import { buildRunReportHtml, type RunReportInput } from './build-report';
 

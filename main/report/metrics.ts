@@ -1,7 +1,7 @@
 /** Figures the Run report prints that the run summary does not carry. */
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import { estimateInternalResistance } from '../../shared/engine/diagnosis';
-import type { EngineEvent, Phase, RunSummary, TimedSample } from '../../shared/engine/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import { estimateInternalResistance } from '@shared/engine/diagnosis';
+import type { EngineEvent, Phase, RunSummary, TimedSample } from '@shared/engine/types';
 
 export interface PhaseSegment {
   phase: Phase;

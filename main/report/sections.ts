@@ -1,8 +1,8 @@
 /** One function per section of the Run report; each returns escaped HTML. */
-import { PROFILE_CAUTION } from '../../shared/chemistry/profile';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import type { Diagnosis } from '../../shared/engine/diagnosis';
-import type { AlarmEvent, EngineEvent, Phase } from '../../shared/engine/types';
+import { PROFILE_CAUTION } from '@shared/chemistry/profile';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { Diagnosis } from '@shared/engine/diagnosis';
+import type { AlarmEvent, EngineEvent, Phase } from '@shared/engine/types';
 import { clock, duration, escapeHtml, table } from './html';
 import type { GapRow, PhaseSegment, ReportMetrics } from './metrics';
 

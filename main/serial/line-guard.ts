@@ -6,7 +6,7 @@
  * At most `maxBytes + 1` bytes are held, whatever arrives.
  */
 import { Transform, type TransformCallback } from 'node:stream';
-import { MAX_LINE_BYTES } from '../../shared/telemetry/types';
+import { MAX_LINE_BYTES } from '@shared/telemetry/types';
 
 const LF = 10;
 const CR = 13;

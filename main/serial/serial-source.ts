@@ -195,7 +195,11 @@ export function createSerialSource(
         p.removeAllListeners();
         if (!openProblemSaid && state === 'connecting') {
           openProblemSaid = true;
-          emitter.emit('problem', `cannot open ${path}: ${err.message}; retrying`);
+          // On Linux serial devices usually belong to the `dialout` group.
+          const hint = /EACCES|permission denied/i.test(err.message)
+            ? ' (no permission: add your user to the group owning the port, often dialout, then log in again)'
+            : '';
+          emitter.emit('problem', `cannot open ${path}: ${err.message}${hint}; retrying`);
         }
         scheduleRetry();
         return;
@@ -235,7 +239,7 @@ export function createSerialSource(
       () => {
         if (port !== p) return;
         if (Date.now() - lastDataMs > watchdogMs && !exists(path))
-          lost(`${path} vanished (no data for ${Math.round(watchdogMs / 1000)} s)`);
+          lost(`${path} vanished (no data for ${watchdogMs / 1000} s)`);
       },
       Math.max(100, Math.min(1000, watchdogMs / 2)),
     );

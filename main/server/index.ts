@@ -8,8 +8,8 @@ import { createServer, type IncomingMessage, type Server, type ServerResponse } 
 import type { AddressInfo } from 'node:net';
 import { join } from 'node:path';
 import { WebSocketServer, type WebSocket } from 'ws';
-import { WS_PATH } from '../../shared/ipc/channels';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
+import { WS_PATH } from '@shared/ipc/channels';
+import type { PushEnvelope } from '@shared/ipc/pushes';
 import type { RunReader } from '../recorder/types';
 import { answerText, errorText } from '../app/dispatch';
 import type { AppService } from '../app/service';

@@ -3,8 +3,8 @@
  * connection -> pack, with the pack's heat, its thermistor and the day's light. Stepped in
  * time; pure and deterministic for a given seed.
  */
-import type { ThermistorModel, SourceKind } from '../../shared/telemetry/types';
-import { thermistorReading, thermistorTemperature, dividerOf } from '../../shared/chemistry/thermistor';
+import type { ThermistorModel, SourceKind } from '@shared/telemetry/types';
+import { thermistorReading, thermistorTemperature, dividerOf } from '@shared/chemistry/thermistor';
 import { packVoltageCurve, stepPack, type PackParams, type PackState } from './pack';
 import { stepTemperatureC, type ThermalParams } from './thermal';
 import { converterInputW, type ConverterParams } from './converter';

@@ -4,7 +4,7 @@
  * decides what the power stage does next. It knows nothing of the model behind it, so every
  * phase and fault in a simulated trace comes from the physics, not from a script.
  */
-import type { Chemistry } from '../../shared/chemistry/types';
+import type { Chemistry } from '@shared/chemistry/types';
 
 export type ChargerMode = 'precondition' | 'cc' | 'cv' | 'done' | 'fault' | 'sleep';
 

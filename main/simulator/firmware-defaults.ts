@@ -3,7 +3,7 @@
  * scenario's profile sets a value. A real charger does not read Taperline's profile
  * defaults, so these are kept apart from shared/chemistry on purpose.
  */
-import type { Chemistry } from '../../shared/chemistry/types';
+import type { Chemistry } from '@shared/chemistry/types';
 import type { ChargerSettings } from './charger';
 import type { ProfileJson } from './types';
 

@@ -5,7 +5,7 @@
  * the shape between them is a smooth demo curve drawn from memory of typical cells, not a
  * datasheet: it is for the built-in simulated charger only.
  */
-import type { Chemistry } from '../../shared/chemistry/types';
+import type { Chemistry } from '@shared/chemistry/types';
 
 /** [state of charge 0..1, volts per cell], sorted by state of charge. */
 export type OcvTable = readonly (readonly [number, number])[];

@@ -6,7 +6,7 @@
  * recombination, lead-acid gassing), a voltage temperature coefficient, self-discharge and
  * shorted cells. Pure and deterministic.
  */
-import type { Chemistry } from '../../shared/chemistry/types';
+import type { Chemistry } from '@shared/chemistry/types';
 import { cellOcvV, maxSoc } from './ocv';
 
 export interface PackParams {

@@ -4,7 +4,7 @@
  * physical cause in the model (a shorted cell, a hot box, weak light, a drifting
  * reference...), never from a scripted phase label.
  */
-import type { ThermistorModel } from '../../shared/telemetry/types';
+import type { ThermistorModel } from '@shared/telemetry/types';
 import type { BenchParams } from './bench';
 import { DEFAULT_CONVERTER } from './converter';
 import { chargerSettingsFor, type FirmwareOverrides } from './firmware-defaults';

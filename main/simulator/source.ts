@@ -5,7 +5,7 @@
  */
 import { EventEmitter } from 'node:events';
 import type { LineSource, LineSourceEvents } from '../sources/types';
-import type { LineShape } from '../../shared/telemetry/format-line';
+import type { LineShape } from '@shared/telemetry/format-line';
 import { getScenario } from './scenarios';
 import { createTelemetryRun, FIRMWARE_VERSION, type TelemetryRun, type TimedLine } from './telemetry';
 

@@ -5,7 +5,7 @@
  * `settle` gives the input voltage and current once the charger has chosen its draw.
  */
 import { panelPoint, maxPowerPoint, openCircuitV, type PanelParams } from './solar';
-import type { SourceKind } from '../../shared/telemetry/types';
+import type { SourceKind } from '@shared/telemetry/types';
 
 export interface AdapterParams {
   kind: 'adapter';

@@ -9,7 +9,7 @@ import {
   formatTelemetryLine,
   type LineShape,
   type LineValue,
-} from '../../shared/telemetry/format-line';
+} from '@shared/telemetry/format-line';
 import { createBench, type Bench, type BenchReadings } from './bench';
 import { createRng, type Rng } from './rng';
 import type { Scenario } from './types';

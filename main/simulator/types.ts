@@ -1,7 +1,7 @@
 /** Types of the simulator's public surface: scenarios, their profiles and expected outcomes. */
-import type { Chemistry } from '../../shared/chemistry/types';
-import type { ThermistorModel } from '../../shared/telemetry/types';
-import type { AlarmCode, Phase } from '../../shared/engine/types';
+import type { Chemistry } from '@shared/chemistry/types';
+import type { ThermistorModel } from '@shared/telemetry/types';
+import type { AlarmCode, Phase } from '@shared/engine/types';
 import type { BenchParams } from './bench';
 
 /** A profile as a user writes it (PROTOCOL section 2): only the keys the demos use. */

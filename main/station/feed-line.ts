@@ -1,5 +1,5 @@
 /** What the Line feed shows for one received line, from the parser's verdict. */
-import type { LineResult } from '../../shared/telemetry/types';
+import type { LineResult } from '@shared/telemetry/types';
 import type { FeedLine } from './types';
 
 export function toFeedLine(text: string, rxS: number, result: LineResult): FeedLine {

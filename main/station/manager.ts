@@ -4,11 +4,11 @@
  * recorder batches its writes, so a slow or broken port only affects its own station.
  */
 import { EventEmitter } from 'node:events';
-import { parseProfile } from '../../shared/chemistry/profile';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import { createPipeline, type Pipeline } from '../../shared/engine/pipeline';
-import { createLineParser, type LineParser } from '../../shared/telemetry/parse-line';
-import type { EngineEvent } from '../../shared/engine/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import { createPipeline, type Pipeline } from '@shared/engine/pipeline';
+import { createLineParser, type LineParser } from '@shared/telemetry/parse-line';
+import type { EngineEvent } from '@shared/engine/types';
 import type { Recorder, RunEndReason } from '../recorder/types';
 import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';

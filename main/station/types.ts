@@ -3,9 +3,9 @@
  * Electron shell. A station is one charger on one source, with its profile, pipeline and run.
  */
 import type { EventEmitter } from 'node:events';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import type { EngineEvent, RunState, TimedSample } from '../../shared/engine/types';
-import type { RejectReason } from '../../shared/telemetry/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { EngineEvent, RunState, TimedSample } from '@shared/engine/types';
+import type { RejectReason } from '@shared/telemetry/types';
 import type { SourceStatus } from '../sources/types';
 
 export type SerialSourceConfig = {

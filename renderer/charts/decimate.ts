@@ -4,10 +4,16 @@
  * any zoom, which matters more on a charger trace than LTTB's smoothness). The window is
  * passed as typed-array views, so nothing is copied before decimating.
  */
-import { minMaxIndices } from '../../shared/series';
+import { minMaxIndices } from '@shared/series';
 import type { PlotPoint } from './trend-source';
 
-export function decimateWindow(t: Float64Array, y: Float32Array | Float64Array, i0: number, i1: number, maxPoints: number): PlotPoint[] {
+export function decimateWindow(
+  t: Float64Array,
+  y: Float32Array | Float64Array,
+  i0: number,
+  i1: number,
+  maxPoints: number,
+): PlotPoint[] {
   const out: PlotPoint[] = [];
   if (i1 <= i0) return out;
   const xs = t.subarray(i0, i1);

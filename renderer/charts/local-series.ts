@@ -43,11 +43,25 @@ export class LocalSeries {
     for (const s of samples) {
       const vin = s.vinV ?? null;
       const iin = s.iinA ?? null;
-      this.append(s.t, s.vbatV ?? null, s.ibatA ?? null, s.tempC ?? null, vin, vin !== null && iin !== null ? vin * iin : null);
+      this.append(
+        s.t,
+        s.vbatV ?? null,
+        s.ibatA ?? null,
+        s.tempC ?? null,
+        vin,
+        vin !== null && iin !== null ? vin * iin : null,
+      );
     }
   }
 
-  append(t: number, vbatV: number | null, ibatA: number | null, tempC: number | null, vinV: number | null, powerW: number | null): void {
+  append(
+    t: number,
+    vbatV: number | null,
+    ibatA: number | null,
+    tempC: number | null,
+    vinV: number | null,
+    powerW: number | null,
+  ): void {
     if (this.size > 0 && t <= this.t[this.size - 1]) return;
     if (this.size === this.capacity) this.makeRoom();
     const i = this.size++;

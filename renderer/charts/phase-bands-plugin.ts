@@ -44,7 +44,12 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
       if (!x || !chartArea) return;
       ctx.save();
       ctx.beginPath();
-      ctx.rect(chartArea.left, chartArea.top, chartArea.right - chartArea.left, chartArea.bottom - chartArea.top);
+      ctx.rect(
+        chartArea.left,
+        chartArea.top,
+        chartArea.right - chartArea.left,
+        chartArea.bottom - chartArea.top,
+      );
       ctx.clip();
       for (const span of source.spans()) {
         if (span.t1 < x.min || span.t0 > x.max) continue;

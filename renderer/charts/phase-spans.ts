@@ -1,5 +1,5 @@
 /** Phase intervals on the run's time axis, from the engine's phase events (never decided here). */
-import type { EngineEvent, Phase } from '../../shared/engine/types';
+import type { EngineEvent, Phase } from '@shared/engine/types';
 
 export interface PhaseSpan {
   phase: Phase;

@@ -2,7 +2,7 @@
  * Taperline's phase palette and hatch patterns. Every phase has its own hatch, so the bands
  * behind the charts and the legend read without colour (print, colour-blind eyes).
  */
-import type { Phase } from '../../shared/engine/types';
+import type { Phase } from '@shared/engine/types';
 
 export interface PhaseStyle {
   /** Solid ink of the phase (legend text marks, label plate). */

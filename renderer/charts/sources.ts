@@ -3,7 +3,7 @@
  * windows older than what the page holds) and a recorded run (overview buckets for long
  * windows, raw samples once zoomed in close).
  */
-import type { EngineEvent } from '../../shared/engine/types';
+import type { EngineEvent } from '@shared/engine/types';
 import type { Api } from '../api';
 import type { StationModel } from '../store';
 import { readBuckets, readSamples, type Bucket, type SeriesField } from '../wire';
@@ -98,11 +98,26 @@ class RunWindowFetcher {
     try {
       if ((toT - fromT) * this.samplesPerS() <= RAW_SAMPLES_LIMIT) {
         const series = new LocalSeries();
-        series.appendSamples(readSamples(await this.api.request('runs.samples', { runId: this.runId, fromT, toT, limit: RAW_SAMPLES_LIMIT * 2 })));
+        series.appendSamples(
+          readSamples(
+            await this.api.request('runs.samples', {
+              runId: this.runId,
+              fromT,
+              toT,
+              limit: RAW_SAMPLES_LIMIT * 2,
+            }),
+          ),
+        );
         this.current = { x0: fromT, x1: toT, buckets: null, samples: series };
       } else {
         const buckets = readBuckets(
-          await this.api.request('runs.overview', { runId: this.runId, fields: OVERVIEW_FIELDS, fromT, toT, buckets: OVERVIEW_BUCKETS }),
+          await this.api.request('runs.overview', {
+            runId: this.runId,
+            fields: OVERVIEW_FIELDS,
+            fromT,
+            toT,
+            buckets: OVERVIEW_BUCKETS,
+          }),
         );
         this.current = { x0: fromT, x1: toT, buckets, samples: null };
       }
@@ -168,7 +183,8 @@ export class LiveStationSource implements TrendSource {
     const s = this.model.series;
     if (!s.covers(x0) && this.fetcher) {
       const older = this.fetcher.points(field, x0, Math.min(x1, s.firstT ?? x1), maxPoints);
-      if (older) return [...older.filter((p) => p.x < (s.firstT ?? Infinity)), ...s.points(field, x0, x1, maxPoints)];
+      if (older)
+        return [...older.filter((p) => p.x < (s.firstT ?? Infinity)), ...s.points(field, x0, x1, maxPoints)];
     }
     return s.points(field, x0, x1, maxPoints);
   }
@@ -191,9 +207,23 @@ export class RecordedRunSource implements TrendSource {
     this.fetcher = new RunWindowFetcher(api, runId, rate, () => this.onData?.());
   }
 
-  static async open(api: Api, runId: number, durationS: number, lineCount: number, events: readonly EngineEvent[]): Promise<RecordedRunSource> {
+  static async open(
+    api: Api,
+    runId: number,
+    durationS: number,
+    lineCount: number,
+    events: readonly EngineEvent[],
+  ): Promise<RecordedRunSource> {
     const toT = Math.max(durationS, 1);
-    const whole = readBuckets(await api.request('runs.overview', { runId, fields: OVERVIEW_FIELDS, fromT: 0, toT, buckets: OVERVIEW_BUCKETS }));
+    const whole = readBuckets(
+      await api.request('runs.overview', {
+        runId,
+        fields: OVERVIEW_FIELDS,
+        fromT: 0,
+        toT,
+        buckets: OVERVIEW_BUCKETS,
+      }),
+    );
     return new RecordedRunSource(api, runId, durationS, lineCount, events, whole);
   }
 

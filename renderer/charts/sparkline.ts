@@ -1,5 +1,10 @@
 /** A small pack-voltage trace for a Rack tile, drawn straight on a canvas (no chart library). */
-export function drawSparkline(canvas: HTMLCanvasElement, t: Float64Array, y: Float32Array | Float64Array, ink: string): void {
+export function drawSparkline(
+  canvas: HTMLCanvasElement,
+  t: Float64Array,
+  y: Float32Array | Float64Array,
+  ink: string,
+): void {
   const dpr = window.devicePixelRatio || 1;
   const cssW = canvas.clientWidth || 160;
   const cssH = canvas.clientHeight || 36;

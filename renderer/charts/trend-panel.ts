@@ -7,7 +7,15 @@
  * the x scale's min/max directly: wheel or drag on a chart, arrow and +/- keys, or the view's
  * buttons.
  */
-import { Chart, LineController, LineElement, LinearScale, PointElement, type ChartDataset, type Scale } from 'chart.js';
+import {
+  Chart,
+  LineController,
+  LineElement,
+  LinearScale,
+  PointElement,
+  type ChartDataset,
+  type Scale,
+} from 'chart.js';
 import { formatRunTime } from '../format';
 import { phaseBandsPlugin, type TimeMarker } from './phase-bands-plugin';
 import type { PlotField, PlotPoint, TrendSource } from './trend-source';
@@ -33,13 +41,37 @@ export interface QuantitySpec {
 
 /** The Bench view's charts, organised by physical quantity (DESIGN "Names"). */
 export const BENCH_QUANTITIES: QuantitySpec[] = [
-  { id: 'vbat', left: { title: 'Pack voltage [V]', series: [{ field: 'vbatV', label: 'Pack voltage', color: '#1f3f6e' }] } },
-  { id: 'ibat', left: { title: 'Charge current [A]', series: [{ field: 'ibatA', label: 'Charge current', color: '#8a3a10' }] } },
-  { id: 'temp', left: { title: 'Temperature [°C]', series: [{ field: 'tempC', label: 'Pack temperature', color: '#6e1f4a' }] } },
+  {
+    id: 'vbat',
+    left: {
+      title: 'Pack voltage [V]',
+      series: [{ field: 'vbatV', label: 'Pack voltage', color: '#1f3f6e' }],
+    },
+  },
+  {
+    id: 'ibat',
+    left: {
+      title: 'Charge current [A]',
+      series: [{ field: 'ibatA', label: 'Charge current', color: '#8a3a10' }],
+    },
+  },
+  {
+    id: 'temp',
+    left: {
+      title: 'Temperature [°C]',
+      series: [{ field: 'tempC', label: 'Pack temperature', color: '#6e1f4a' }],
+    },
+  },
   {
     id: 'source',
-    left: { title: 'Source voltage [V]', series: [{ field: 'vinV', label: 'Source voltage', color: '#2c5a36' }] },
-    right: { title: 'Source power [W]', series: [{ field: 'powerW', label: 'Source power', color: '#6a5614', dash: [5, 3] }] },
+    left: {
+      title: 'Source voltage [V]',
+      series: [{ field: 'vinV', label: 'Source voltage', color: '#2c5a36' }],
+    },
+    right: {
+      title: 'Source power [W]',
+      series: [{ field: 'powerW', label: 'Source power', color: '#6a5614', dash: [5, 3] }],
+    },
   },
 ];
 
@@ -240,9 +272,15 @@ export class TrendPanel {
 
   private drawChart(entry: ChartEntry, x0: number, x1: number): void {
     const { chart } = entry;
-    const widthPx = Math.max(100, chart.chartArea ? chart.chartArea.right - chart.chartArea.left : chart.width);
+    const widthPx = Math.max(
+      100,
+      chart.chartArea ? chart.chartArea.right - chart.chartArea.left : chart.width,
+    );
     const maxPoints = Math.min(MAX_POINTS_PER_DATASET, Math.ceil(widthPx * 2));
-    const bounds = { y: [Infinity, -Infinity], y2: [Infinity, -Infinity] } as Record<'y' | 'y2', [number, number]>;
+    const bounds = { y: [Infinity, -Infinity], y2: [Infinity, -Infinity] } as Record<
+      'y' | 'y2',
+      [number, number]
+    >;
     entry.fields.forEach(({ field, axis }, i) => {
       const points = this.source ? this.source.points(field, x0, x1, maxPoints) : [];
       chart.data.datasets[i].data = points;
@@ -256,7 +294,6 @@ export class TrendPanel {
     const scales = chart.options.scales!;
     scales.x!.min = x0;
     scales.x!.max = x1;
-    (scales.x!.ticks as { stepSize?: number }).stepSize = niceTimeStep((x1 - x0) / 8);
     for (const axis of ['y', 'y2'] as const) {
       const scale = scales[axis];
       if (!scale) continue;
@@ -291,7 +328,10 @@ export class TrendPanel {
         const stroke = document.createElement('span');
         stroke.className = 'series-stroke';
         stroke.style.borderTopColor = s.color;
-        key.append(stroke, document.createTextNode(`${s.label} (${axis.title.match(/\[(.*)\]/)?.[1] ?? ''})`));
+        key.append(
+          stroke,
+          document.createTextNode(`${s.label} (${axis.title.match(/\[(.*)\]/)?.[1] ?? ''})`),
+        );
         caption.append(key);
       }
     }
@@ -333,7 +373,22 @@ export class TrendPanel {
         min: this.x0,
         max: this.x1,
         grid,
-        ticks: { display: showTimeLabels, maxRotation: 0, autoSkipPadding: 24, font: tickFont, color: '#3b4038', callback: (v: number | string) => formatRunTime(Number(v)) },
+        // Ticks on whole clock steps (10 min, 1 h, 6 h, 1 d...) rather than Chart.js's even split.
+        afterBuildTicks: (scale: Scale) => {
+          const step = niceTimeStep((scale.max - scale.min) / 8);
+          const ticks = [];
+          for (let v = Math.ceil(scale.min / step) * step; v <= scale.max; v += step)
+            ticks.push({ value: v });
+          scale.ticks = ticks;
+        },
+        ticks: {
+          display: showTimeLabels,
+          maxRotation: 0,
+          autoSkipPadding: 24,
+          font: tickFont,
+          color: '#3b4038',
+          callback: (v: number | string) => formatRunTime(Number(v)),
+        },
         title: { display: showTimeLabels, text: 'Run time [h:mm]', font: tickFont, color: '#3b4038' },
       },
       y: {
@@ -460,7 +515,9 @@ export class TrendPanel {
 }
 
 /** Tick steps a person reads on a clock: minutes, quarter hours, hours, days. */
-const TIME_STEPS_S = [10, 30, 60, 120, 300, 600, 900, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800, 604800];
+const TIME_STEPS_S = [
+  10, 30, 60, 120, 300, 600, 900, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800, 604800,
+];
 
 export function niceTimeStep(roughS: number): number {
   return TIME_STEPS_S.find((s) => s >= roughS) ?? Math.ceil(roughS / 604800) * 604800;

@@ -3,14 +3,21 @@
  * bench, trends by physical quantity on one time axis with the phases shaded behind, metrics,
  * alarms with Acknowledge, follow-live / pause, and zoom and pan over the whole run.
  */
-import type { AlarmEvent, EngineEvent } from '../../shared/engine/types';
+import type { AlarmEvent, EngineEvent } from '@shared/engine/types';
 import type { Api } from '../api';
 import { LiveStationSource, RecordedRunSource } from '../charts/sources';
 import { hatchSwatch } from '../charts/phase-style';
 import { BENCH_QUANTITIES, TrendPanel, type PanelWindow } from '../charts/trend-panel';
 import type { TimeMarker } from '../charts/phase-bands-plugin';
 import { button, h } from '../dom';
-import { formatClock, formatDuration, formatNumber, formatPercent, formatRunTime, phaseWords } from '../format';
+import {
+  formatClock,
+  formatDuration,
+  formatNumber,
+  formatPercent,
+  formatRunTime,
+  phaseWords,
+} from '../format';
 import type { Navigator, View, ViewTarget } from '../router';
 import type { StationModel, Store } from '../store';
 import { errorText, readEvents, readRun, type RunListRow } from '../wire';
@@ -24,7 +31,10 @@ const SPANS: { label: string; spanS: number | null }[] = [
   { label: 'All', spanS: null },
 ];
 
-type Mode = { kind: 'none' } | { kind: 'live'; stationId: string } | { kind: 'run'; run: RunListRow; source: RecordedRunSource };
+type Mode =
+  | { kind: 'none' }
+  | { kind: 'live'; stationId: string }
+  | { kind: 'run'; run: RunListRow; source: RecordedRunSource };
 
 export class BenchView implements View {
   private mode: Mode = { kind: 'none' };
@@ -35,11 +45,20 @@ export class BenchView implements View {
   private visible = false;
 
   private readonly head = h('div', { class: 'bench-head' });
-  private readonly plate = h('div', { class: 'phase-plate', role: 'status', 'aria-live': 'polite', 'aria-atomic': 'true' });
+  private readonly plate = h('div', {
+    class: 'phase-plate',
+    role: 'status',
+    'aria-live': 'polite',
+    'aria-atomic': 'true',
+  });
   private readonly readouts = h('dl', { class: 'readouts' });
   private readonly metrics = h('dl', { class: 'metrics' });
   private readonly alarms = h('div', { class: 'alarms', 'aria-live': 'polite' });
-  private readonly toolbar = h('div', { class: 'chart-toolbar', role: 'toolbar', 'aria-label': 'Chart window' });
+  private readonly toolbar = h('div', {
+    class: 'chart-toolbar',
+    role: 'toolbar',
+    'aria-label': 'Chart window',
+  });
   private readonly windowLabel = h('span', { class: 'window-label', 'aria-live': 'off' });
   private readonly pickBar = h('div', { class: 'pick-bar' });
   private readonly legendSlot = h('div', { class: 'legend-slot' });
@@ -57,11 +76,21 @@ export class BenchView implements View {
     this.panel = new TrendPanel(chartsHost, BENCH_QUANTITIES, (t) => this.onPick(t));
     this.panel.onWindow((w) => this.onWindow(w));
 
-    this.followBtn = button('Follow live', () => this.panel.setFollow(!this.panel.window().follow), { class: 'btn toggle', 'aria-pressed': 'true' });
-    this.pauseBtn = button('Pause', () => this.panel.setPaused(!this.panel.window().paused), { class: 'btn toggle', 'aria-pressed': 'false' });
+    this.followBtn = button('Follow live', () => this.panel.setFollow(!this.panel.window().follow), {
+      class: 'btn toggle',
+      'aria-pressed': 'true',
+    });
+    this.pauseBtn = button('Pause', () => this.panel.setPaused(!this.panel.window().paused), {
+      class: 'btn toggle',
+      'aria-pressed': 'false',
+    });
     const spanGroup = h('span', { class: 'btn-group', role: 'group', 'aria-label': 'Window width' });
     for (const s of SPANS) {
-      const b = button(s.label, () => this.showSpan(s.spanS), { class: 'btn toggle', 'aria-pressed': String(s.spanS === this.activeSpan), 'aria-label': s.spanS === null ? 'Show the whole run' : `Show the last ${s.label}` });
+      const b = button(s.label, () => this.showSpan(s.spanS), {
+        class: 'btn toggle',
+        'aria-pressed': String(s.spanS === this.activeSpan),
+        'aria-label': s.spanS === null ? 'Show the whole run' : `Show the last ${s.label}`,
+      });
       this.spanBtns.push(b);
       spanGroup.append(b);
     }
@@ -90,7 +119,8 @@ export class BenchView implements View {
 
     store.on('stations', () => this.queueRender());
     store.on('samples', (id) => {
-      if (this.visible && this.mode.kind === 'live' && this.mode.stationId === id) this.panel.requestRedraw('data');
+      if (this.visible && this.mode.kind === 'live' && this.mode.stationId === id)
+        this.panel.requestRedraw('data');
     });
     store.on('events', (id) => {
       if (this.mode.kind === 'live' && this.mode.stationId === id) {
@@ -154,7 +184,13 @@ export class BenchView implements View {
       this.legendSlot.replaceChildren(phaseLegend(run.chemistry));
       this.queueRender();
     } catch (err) {
-      this.head.replaceChildren(h('p', { class: 'error-text', role: 'alert' }, `Run ${runId} could not be opened: ${errorText(err)}. Nothing was changed; pick it again from the Runs view.`));
+      this.head.replaceChildren(
+        h(
+          'p',
+          { class: 'error-text', role: 'alert' },
+          `Run ${runId} could not be opened: ${errorText(err)}. Nothing was changed; pick it again from the Runs view.`,
+        ),
+      );
     }
   }
 
@@ -164,7 +200,12 @@ export class BenchView implements View {
   }
 
   private onWindow(w: PanelWindow): void {
-    const extent = this.mode.kind === 'run' ? this.mode.source.extent() : this.mode.kind === 'live' ? this.liveModel()?.series.lastT : null;
+    const extent =
+      this.mode.kind === 'run'
+        ? this.mode.source.extent()
+        : this.mode.kind === 'live'
+          ? this.liveModel()?.series.lastT
+          : null;
     const end = typeof extent === 'number' ? extent : extent?.t1;
     this.windowLabel.textContent = `Showing ${formatRunTime(w.x0)} – ${formatRunTime(w.x1)}${end !== undefined && end !== null ? ` of ${formatRunTime(end)}` : ''}`;
     this.followBtn.setAttribute('aria-pressed', String(w.follow));
@@ -172,7 +213,9 @@ export class BenchView implements View {
     this.pauseBtn.textContent = w.paused ? 'Resume' : 'Pause';
     this.followBtn.disabled = this.mode.kind === 'run';
     this.pauseBtn.disabled = this.mode.kind === 'run';
-    this.spanBtns.forEach((b, i) => b.setAttribute('aria-pressed', String(w.follow && SPANS[i].spanS === this.activeSpan)));
+    this.spanBtns.forEach((b, i) =>
+      b.setAttribute('aria-pressed', String(w.follow && SPANS[i].spanS === this.activeSpan)),
+    );
   }
 
   private liveModel(): StationModel | null {
@@ -204,7 +247,14 @@ export class BenchView implements View {
     } else if (this.mode.kind === 'run') {
       this.renderRun(this.mode.run, this.mode.source.events());
     } else {
-      this.plate.replaceChildren(h('p', { class: 'phase-word' }, 'No station yet'), h('p', { class: 'quiet' }, 'Add one in Connect & profile (Alt+5), or open a recorded run in the Runs view (Alt+3).'));
+      this.plate.replaceChildren(
+        h('p', { class: 'phase-word' }, 'No station yet'),
+        h(
+          'p',
+          { class: 'quiet' },
+          'Add one in Connect & profile (Alt+5), or open a recorded run in the Runs view (Alt+3).',
+        ),
+      );
       this.readouts.replaceChildren();
       this.metrics.replaceChildren();
       this.alarms.replaceChildren();
@@ -220,7 +270,9 @@ export class BenchView implements View {
   private renderHead(): void {
     const key = JSON.stringify([
       this.mode.kind === 'live' ? this.mode.stationId : this.mode.kind === 'run' ? this.mode.run.id : null,
-      this.store.sortedStations().map((m) => [m.view.id, m.view.label, m.view.source, m.view.recording, m.view.runId]),
+      this.store
+        .sortedStations()
+        .map((m) => [m.view.id, m.view.label, m.view.source, m.view.recording, m.view.runId]),
     ]);
     if (key === this.headKey) return;
     this.headKey = key;
@@ -230,30 +282,63 @@ export class BenchView implements View {
       if (this.mode.kind === 'live' && this.mode.stationId === m.view.id) opt.selected = true;
       select.append(opt);
     }
-    if (this.mode.kind === 'run') select.prepend(h('option', { value: '', selected: true }, `Recorded run ${this.mode.run.id}`));
+    if (this.mode.kind === 'run')
+      select.prepend(h('option', { value: '', selected: true }, `Recorded run ${this.mode.run.id}`));
     select.addEventListener('change', () => {
       if (select.value) this.openStation(select.value);
     });
-    const parts: (Node | string)[] = [h('label', { for: 'bench-station', class: 'field-label' }, 'Station'), select];
+    const parts: (Node | string)[] = [
+      h('label', { for: 'bench-station', class: 'field-label' }, 'Station'),
+      select,
+    ];
     if (this.mode.kind === 'live') {
       const m = this.liveModel();
       if (m) {
         parts.push(
-          h('span', { class: `source-state source-${m.view.source.state}` }, `Source ${m.view.sourceLabel}: ${m.view.source.state}${m.view.source.detail ? ` — ${m.view.source.detail}` : ''}`),
-          h('span', { class: `rec-state${m.view.recording.ok ? '' : ' rec-bad'}` }, m.view.recording.ok ? (m.view.runId !== null ? `● Recording run ${m.view.runId}` : 'Not recording') : `✖ Recording failed: ${m.view.recording.problem ?? 'unknown problem'}`),
-          button('Line feed', () => this.nav.open({ view: 'feed', stationId: m.view.id }), { class: 'btn btn-quiet' }),
-          button('Profile', () => this.nav.open({ view: 'connect', stationId: m.view.id }), { class: 'btn btn-quiet' }),
+          h(
+            'span',
+            // The detail is long when all is well; it is spelled out only when the source is in trouble.
+            { class: `source-state source-${m.view.source.state}`, title: m.view.source.detail },
+            `Source ${m.view.sourceLabel}: ${m.view.source.state}${m.view.source.detail && m.view.source.state !== 'open' ? ` — ${m.view.source.detail}` : ''}`,
+          ),
+          h(
+            'span',
+            { class: `rec-state${m.view.recording.ok ? '' : ' rec-bad'}` },
+            m.view.recording.ok
+              ? m.view.runId !== null
+                ? `● Recording run ${m.view.runId}`
+                : 'Not recording'
+              : `✖ Recording failed: ${m.view.recording.problem ?? 'unknown problem'}`,
+          ),
+          button('Line feed', () => this.nav.open({ view: 'feed', stationId: m.view.id }), {
+            class: 'btn btn-quiet',
+          }),
+          button('Profile', () => this.nav.open({ view: 'connect', stationId: m.view.id }), {
+            class: 'btn btn-quiet',
+          }),
         );
       }
     } else if (this.mode.kind === 'run') {
       const r = this.mode.run;
-      parts.push(h('span', { class: 'run-title' }, `Run ${r.id} · ${r.stationLabel || r.stationId} · ${r.profileName} · started ${formatClock(r.startRxS)}`));
+      parts.push(
+        h(
+          'span',
+          { class: 'run-title' },
+          `Run ${r.id} · ${r.stationLabel || r.stationId} · ${r.profileName} · started ${formatClock(r.startRxS)}`,
+        ),
+      );
       parts.push(button('Back to Runs', () => this.nav.open({ view: 'runs' }), { class: 'btn btn-quiet' }));
     }
     this.head.replaceChildren(...parts);
   }
 
-  private renderPlate(phase: Parameters<typeof phaseWords>[0], chemistry: string, sinceS: number | null, caption: string, whyAtT: number | null): void {
+  private renderPlate(
+    phase: Parameters<typeof phaseWords>[0],
+    chemistry: string,
+    sinceS: number | null,
+    caption: string,
+    whyAtT: number | null,
+  ): void {
     const key = JSON.stringify([phase, chemistry, caption, whyAtT]);
     if (key === this.plateKey && this.sinceEl) {
       this.sinceEl.textContent = sinceS === null ? '' : `for ${formatDuration(sinceS)}`;
@@ -265,9 +350,25 @@ export class BenchView implements View {
     swatch.setAttribute('aria-hidden', 'true');
     const kids: Node[] = [
       swatch,
-      h('div', { class: 'plate-text' }, h('p', { class: 'plate-caption' }, caption), h('p', { class: 'phase-word', 'data-phase': phase }, phaseWords(phase, chemistry)), (this.sinceEl = h('p', { class: 'phase-since' }, sinceS === null ? '' : `for ${formatDuration(sinceS)}`))),
+      h(
+        'div',
+        { class: 'plate-text' },
+        h('p', { class: 'plate-caption' }, caption),
+        h('p', { class: 'phase-word', 'data-phase': phase }, phaseWords(phase, chemistry)),
+        (this.sinceEl = h(
+          'p',
+          { class: 'phase-since' },
+          sinceS === null ? '' : `for ${formatDuration(sinceS)}`,
+        )),
+      ),
     ];
-    if (whyAtT !== null) kids.push(button('Why?', () => this.openDiagnosis(whyAtT), { class: 'btn btn-why', 'aria-label': 'Why is the charger in fault? Open the diagnosis' }));
+    if (whyAtT !== null)
+      kids.push(
+        button('Why?', () => this.openDiagnosis(whyAtT), {
+          class: 'btn btn-why',
+          'aria-label': 'Why is the charger in fault? Open the diagnosis',
+        }),
+      );
     this.plate.className = `phase-plate phase-${phase}`;
     this.plate.replaceChildren(...kids);
   }
@@ -275,7 +376,13 @@ export class BenchView implements View {
   private renderLive(model: StationModel): void {
     const { state, profile } = model.view;
     const faultAlarm = state.activeAlarms.find((a) => a.level === 'critical');
-    this.renderPlate(state.phase, profile.chemistry, state.t - state.phaseSinceT, `${model.view.label || model.view.id} · ${profile.name}`, state.phase === 'fault' || faultAlarm ? (faultAlarm?.t ?? state.t) : null);
+    this.renderPlate(
+      state.phase,
+      profile.chemistry,
+      state.t - state.phaseSinceT,
+      `${model.view.label || model.view.id} · ${profile.name}`,
+      state.phase === 'fault' || faultAlarm ? (faultAlarm?.t ?? state.t) : null,
+    );
     const last = state.last;
     this.readouts.replaceChildren(
       ...readout('Pack', formatNumber(last?.vbatV, 3, 'V')),
@@ -284,8 +391,14 @@ export class BenchView implements View {
       ...readout('Source', formatNumber(last?.vinV, 2, 'V')),
     );
     const m = state.metrics;
-    const eta = m.etaS === null ? '–' : `${formatDuration(m.etaS)} (CC ${formatDuration(m.etaCcS)} + CV ${formatDuration(m.etaCvS)})`;
-    const mppt = profile.inputSetpointV === null ? 'no set point in the profile' : `set point ${formatNumber(profile.inputSetpointV, 1, 'V')}, mean error ${formatPercent(m.mpptErrorFraction, 1)}`;
+    const eta =
+      m.etaS === null
+        ? '–'
+        : `${formatDuration(m.etaS)} (CC ${formatDuration(m.etaCcS)} + CV ${formatDuration(m.etaCvS)})`;
+    const mppt =
+      profile.inputSetpointV === null
+        ? 'no set point in the profile'
+        : `set point ${formatNumber(profile.inputSetpointV, 1, 'V')}, mean error ${formatPercent(m.mpptErrorFraction, 1)}`;
     this.metrics.replaceChildren(
       ...metric('Charge in', formatNumber(m.ah, 3, 'Ah')),
       ...metric('Energy in', formatNumber(m.wh, 2, 'Wh')),
@@ -293,7 +406,10 @@ export class BenchView implements View {
       ...metric('Efficiency', formatPercent(m.efficiency, 1)),
       ...metric('State of charge', m.socPct === null ? '–' : `${m.socPct.toFixed(0)} %`),
       ...metric('Time to full', eta),
-      ...metric('Internal resistance', m.internalResistanceOhm === null ? '–' : `${(m.internalResistanceOhm * 1000).toFixed(0)} mΩ`),
+      ...metric(
+        'Internal resistance',
+        m.internalResistanceOhm === null ? '–' : `${(m.internalResistanceOhm * 1000).toFixed(0)} mΩ`,
+      ),
       ...metric('MPPT tracking', mppt),
       ...metric('Run time', formatDuration(state.t)),
       ...metric('Lines', `${model.view.lines} (${model.view.rejected} rejected)`),
@@ -311,8 +427,18 @@ export class BenchView implements View {
 
   private renderRun(run: RunListRow, events: readonly EngineEvent[]): void {
     const lastPhase = [...events].reverse().find((e) => e.type === 'phase');
-    const firstFault = events.find((e) => (e.type === 'alarm' && e.level === 'critical') || (e.type === 'phase' && e.phase === 'fault'));
-    this.renderPlate(lastPhase?.type === 'phase' ? lastPhase.phase : 'idle', run.chemistry, null, `Recorded run ${run.id} ended: ${run.endReason ?? 'still recording'}`, firstFault ? firstFault.t : null);
+    const firstFault = events.find(
+      (e) => (e.type === 'alarm' && e.level === 'critical') || (e.type === 'phase' && e.phase === 'fault'),
+    );
+    this.renderPlate(
+      lastPhase?.type === 'phase' ? lastPhase.phase : 'idle',
+      run.chemistry,
+      null,
+      run.endReason
+        ? `Recorded run ${run.id} · ended: ${run.endReason} · last phase`
+        : `Recorded run ${run.id} · still recording · latest phase`,
+      firstFault ? firstFault.t : null,
+    );
     this.readouts.replaceChildren();
     this.metrics.replaceChildren(
       ...metric('Charge in', formatNumber(run.ah, 3, 'Ah')),
@@ -328,18 +454,28 @@ export class BenchView implements View {
 
   private renderPickBar(): void {
     if (this.pickT === null) {
-      this.pickBar.replaceChildren(h('span', { class: 'quiet' }, 'Click a chart (or press Enter on it) to mark a time; wheel or +/− zooms, drag or arrow keys pan.'));
+      this.pickBar.replaceChildren(
+        h(
+          'span',
+          { class: 'quiet' },
+          'Click a chart (or press Enter on it) to mark a time; wheel or +/− zooms, drag or arrow keys pan.',
+        ),
+      );
       return;
     }
     const t = this.pickT;
     this.pickBar.replaceChildren(
       h('span', { class: 'pick-text' }, `Marked ${formatRunTime(t)}`),
       button('Diagnose here', () => this.openDiagnosis(t), { class: 'btn btn-small', id: 'diagnose-here' }),
-      button('Clear mark', () => {
-        this.pickT = null;
-        this.panel.clearPick();
-        this.renderPickBar();
-      }, { class: 'btn btn-small btn-quiet' }),
+      button(
+        'Clear mark',
+        () => {
+          this.pickT = null;
+          this.panel.clearPick();
+          this.renderPickBar();
+        },
+        { class: 'btn btn-small btn-quiet' },
+      ),
     );
   }
 
@@ -352,7 +488,11 @@ export class BenchView implements View {
     try {
       await this.api.request('stations.ackAlarm', { stationId, code: alarm.code, t: alarm.t });
     } catch (err) {
-      this.store.addProblem({ stationId, level: 'warn', message: `Acknowledging ${alarm.code} failed: ${errorText(err)}. The alarm stays active; try again.` });
+      this.store.addProblem({
+        stationId,
+        level: 'warn',
+        message: `Acknowledging ${alarm.code} failed: ${errorText(err)}. The alarm stays active; try again.`,
+      });
     }
   }
 }
@@ -364,7 +504,9 @@ const metric = readout;
 
 function alarmMarkers(events: readonly EngineEvent[]): TimeMarker[] {
   const out: TimeMarker[] = [];
-  for (const e of events) if (e.type === 'alarm') out.push({ t: e.t, kind: e.level === 'critical' ? 'alarm-critical' : 'alarm-warn', label: e.code });
+  for (const e of events)
+    if (e.type === 'alarm')
+      out.push({ t: e.t, kind: e.level === 'critical' ? 'alarm-critical' : 'alarm-warn', label: e.code });
   return out.slice(-40);
 }
 

@@ -4,8 +4,8 @@
  * lines read with it, and add the station or apply the profile to a running one. Every
  * change is checked by `profile.validate`; a refusal shows next to the field it names.
  */
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import type { LineOutcome } from '../../shared/engine/pipeline';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { LineOutcome } from '@shared/engine/pipeline';
 import type { Api } from '../api';
 import { button, h } from '../dom';
 import { formatNumber } from '../format';
@@ -40,15 +40,31 @@ export class ConnectView implements View {
   private readonly scenariosHost = h('div', { class: 'scenarios-host' });
   private readonly previewInput = h('textarea', { id: 'preview-lines', rows: 6, spellcheck: 'false' });
   private readonly previewOut = h('div', { class: 'preview-out', 'aria-live': 'polite' });
-  private readonly stationIdInput = h('input', { id: 'station-id', type: 'text', autocomplete: 'off', value: 'bench-2', maxlength: 64 });
-  private readonly stationLabelInput = h('input', { id: 'station-label', type: 'text', autocomplete: 'off', maxlength: 120 });
+  private readonly stationIdInput = h('input', {
+    id: 'station-id',
+    type: 'text',
+    autocomplete: 'off',
+    value: 'bench-2',
+    maxlength: 64,
+  });
+  private readonly stationLabelInput = h('input', {
+    id: 'station-label',
+    type: 'text',
+    autocomplete: 'off',
+    maxlength: 120,
+  });
   private readonly applySelect = h('select', { id: 'apply-station' });
   private readonly baud = h('select', { id: 'serial-baud' });
   private readonly dataBits = h('select', { id: 'serial-databits' });
   private readonly parity = h('select', { id: 'serial-parity' });
   private readonly stopBits = h('select', { id: 'serial-stopbits' });
   private readonly matchSerial = h('input', { id: 'serial-match', type: 'checkbox', checked: true });
-  private readonly speedup = h('input', { id: 'sim-speedup', type: 'text', inputmode: 'decimal', value: '60' });
+  private readonly speedup = h('input', {
+    id: 'sim-speedup',
+    type: 'text',
+    inputmode: 'decimal',
+    value: '60',
+  });
   private sourceKind: 'serial' | 'simulator' = 'simulator';
   private selectedPort: PortRow | null = null;
   private selectedScenario: string | null = null;
@@ -65,7 +81,8 @@ export class ConnectView implements View {
     this.form = createProfileForm('profile');
     this.form.fill(PRESETS[5].profile);
     this.form.onChange(() => this.scheduleValidate());
-    for (const b of BAUD_RATES) this.baud.append(h('option', { value: String(b), selected: b === 115200 }, String(b)));
+    for (const b of BAUD_RATES)
+      this.baud.append(h('option', { value: String(b), selected: b === 115200 }, String(b)));
     for (const d of [8, 7, 6, 5]) this.dataBits.append(h('option', { value: String(d) }, String(d)));
     for (const p of ['none', 'even', 'odd']) this.parity.append(h('option', { value: p }, p));
     for (const s of [1, 2]) this.stopBits.append(h('option', { value: String(s) }, String(s)));
@@ -78,7 +95,13 @@ export class ConnectView implements View {
       ['serial', 'Serial port'],
     ] as const) {
       const id = `source-kind-${kind}`;
-      const radio = h('input', { type: 'radio', name: 'source-kind', id, value: kind, checked: kind === this.sourceKind });
+      const radio = h('input', {
+        type: 'radio',
+        name: 'source-kind',
+        id,
+        value: kind,
+        checked: kind === this.sourceKind,
+      });
       radio.addEventListener('change', () => {
         this.sourceKind = kind;
         this.renderSourcePanes();
@@ -88,7 +111,11 @@ export class ConnectView implements View {
     const serialPane = h(
       'div',
       { class: 'serial-pane', id: 'serial-pane' },
-      h('div', { class: 'pane-tools' }, button('Refresh ports', () => void this.loadPorts(), { class: 'btn' })),
+      h(
+        'div',
+        { class: 'pane-tools' },
+        button('Refresh ports', () => void this.loadPorts(), { class: 'btn' }),
+      ),
       this.portsHost,
       h(
         'div',
@@ -97,16 +124,45 @@ export class ConnectView implements View {
         labelled('serial-databits', 'Data bits', this.dataBits),
         labelled('serial-parity', 'Parity', this.parity),
         labelled('serial-stopbits', 'Stop bits', this.stopBits),
-        h('div', { class: 'form-row' }, h('label', { for: 'serial-match', class: 'check-label' }, this.matchSerial, ' Find this device again by its serial number after a replug')),
+        h(
+          'div',
+          { class: 'form-row' },
+          h(
+            'label',
+            { for: 'serial-match', class: 'check-label' },
+            this.matchSerial,
+            ' Find this device again by its serial number after a replug',
+          ),
+        ),
       ),
     );
-    const simPane = h('div', { class: 'sim-pane', id: 'sim-pane' }, this.scenariosHost, labelled('sim-speedup', 'Speed-up (simulated seconds per second)', this.speedup));
+    const simPane = h(
+      'div',
+      { class: 'sim-pane', id: 'sim-pane' },
+      this.scenariosHost,
+      labelled('sim-speedup', 'Speed-up (simulated seconds per second)', this.speedup),
+    );
 
-    const addBtn = button('Add station', () => void this.addStation(), { class: 'btn btn-primary', id: 'add-station' });
-    const applyBtn = button('Apply profile', () => void this.applyProfile(), { class: 'btn', id: 'apply-profile' });
+    const addBtn = button('Add station', () => void this.addStation(), {
+      class: 'btn btn-primary',
+      id: 'add-station',
+    });
+    const applyBtn = button('Apply profile', () => void this.applyProfile(), {
+      class: 'btn',
+      id: 'apply-profile',
+    });
 
     root.append(
-      h('div', { class: 'view-head' }, h('h2', {}, 'Connect & profile'), h('p', { class: 'quiet' }, 'Choose where telemetry comes from and describe the pack. The profile is checked as you type.')),
+      h(
+        'div',
+        { class: 'view-head' },
+        h('h2', {}, 'Connect & profile'),
+        h(
+          'p',
+          { class: 'quiet' },
+          'Choose where telemetry comes from and describe the pack. The profile is checked as you type.',
+        ),
+      ),
       this.status,
       h(
         'div',
@@ -124,17 +180,36 @@ export class ConnectView implements View {
           h('div', { class: 'form-actions' }, addBtn),
           h('h3', {}, 'Or change a running station'),
           labelled('apply-station', 'Station', this.applySelect),
-          h('p', { class: 'quiet' }, 'Applying a profile closes the station’s current run and starts a new one.'),
+          h(
+            'p',
+            { class: 'quiet' },
+            'Applying a profile closes the station’s current run and starts a new one.',
+          ),
           h('div', { class: 'form-actions' }, applyBtn),
         ),
-        h('section', { class: 'panel', 'aria-labelledby': 'profile-title' }, h('h3', { id: 'profile-title' }, 'Profile'), this.form.root),
+        h(
+          'section',
+          { class: 'panel', 'aria-labelledby': 'profile-title' },
+          h('h3', { id: 'profile-title' }, 'Profile'),
+          this.form.root,
+        ),
         h(
           'section',
           { class: 'panel', 'aria-labelledby': 'preview-title' },
           h('h3', { id: 'preview-title' }, 'Live preview'),
-          h('label', { for: 'preview-lines', class: 'field-label' }, 'Lines to read with this profile (one per line; a running station’s recent lines fill in when you pick it)'),
+          h(
+            'label',
+            { for: 'preview-lines', class: 'field-label' },
+            'Lines to read with this profile (one per line; a running station’s recent lines fill in when you pick it)',
+          ),
           this.previewInput,
-          h('div', { class: 'form-actions' }, button('Use the station’s recent lines', () => this.fillPreviewFromStation(), { class: 'btn btn-quiet' })),
+          h(
+            'div',
+            { class: 'form-actions' },
+            button('Use the station’s recent lines', () => this.fillPreviewFromStation(), {
+              class: 'btn btn-quiet',
+            }),
+          ),
           this.previewOut,
         ),
       ),
@@ -161,21 +236,29 @@ export class ConnectView implements View {
   hide(): void {}
 
   private renderSourcePanes(): void {
-    (document.getElementById('serial-pane') ?? this.portsHost.parentElement!).hidden = this.sourceKind !== 'serial';
-    (document.getElementById('sim-pane') ?? this.scenariosHost.parentElement!).hidden = this.sourceKind !== 'simulator';
+    (document.getElementById('serial-pane') ?? this.portsHost.parentElement!).hidden =
+      this.sourceKind !== 'serial';
+    (document.getElementById('sim-pane') ?? this.scenariosHost.parentElement!).hidden =
+      this.sourceKind !== 'simulator';
     if (this.sourceKind === 'serial') void this.loadPorts();
   }
 
   private fillApplySelect(): void {
     const ids = this.store.sortedStations().map((m) => m.view.id);
     const keep = this.applySelect.value;
-    this.applySelect.replaceChildren(...ids.map((id) => h('option', { value: id, selected: id === keep }, id)));
+    this.applySelect.replaceChildren(
+      ...ids.map((id) => h('option', { value: id, selected: id === keep }, id)),
+    );
   }
 
   private fillPreviewFromStation(): void {
     const model = this.store.stations.get(this.applySelect.value);
     if (!model) return;
-    const lines = model.feed.all().filter((r) => r.kind !== 'sent').slice(-20).map((r) => r.text);
+    const lines = model.feed
+      .all()
+      .filter((r) => r.kind !== 'sent')
+      .slice(-20)
+      .map((r) => r.text);
     if (lines.length) {
       this.previewInput.value = lines.join('\n');
       this.scheduleValidate();
@@ -188,13 +271,25 @@ export class ConnectView implements View {
       const raw = await this.api.request('ports.list', {});
       const ports = (Array.isArray(raw) ? raw : []) as PortRow[];
       if (ports.length === 0) {
-        this.portsHost.replaceChildren(h('p', { class: 'quiet' }, 'No serial ports found. Plug the charger’s USB-serial bridge in and press Refresh.'));
+        this.portsHost.replaceChildren(
+          h(
+            'p',
+            { class: 'quiet' },
+            'No serial ports found. Plug the charger’s USB-serial bridge in and press Refresh.',
+          ),
+        );
         return;
       }
       const body = h('tbody');
       for (const p of ports) {
         const id = `port-${p.path.replace(/[^A-Za-z0-9]/g, '_')}`;
-        const radio = h('input', { type: 'radio', name: 'port', id, value: p.path, checked: this.selectedPort?.path === p.path });
+        const radio = h('input', {
+          type: 'radio',
+          name: 'port',
+          id,
+          value: p.path,
+          checked: this.selectedPort?.path === p.path,
+        });
         radio.addEventListener('change', () => (this.selectedPort = p));
         body.append(
           h(
@@ -209,7 +304,22 @@ export class ConnectView implements View {
         );
       }
       this.portsHost.replaceChildren(
-        h('table', { class: 'ports-table' }, h('thead', {}, h('tr', {}, ...['', 'Port', 'Manufacturer', 'Serial number', 'Vendor:product id'].map((c) => h('th', { scope: 'col' }, c)))), body),
+        h(
+          'table',
+          { class: 'ports-table' },
+          h(
+            'thead',
+            {},
+            h(
+              'tr',
+              {},
+              ...['', 'Port', 'Manufacturer', 'Serial number', 'Vendor:product id'].map((c) =>
+                h('th', { scope: 'col' }, c),
+              ),
+            ),
+          ),
+          body,
+        ),
       );
     } catch (err) {
       this.portsHost.replaceChildren(h('p', { class: 'error-text' }, `${errorText(err)}.`));
@@ -219,18 +329,49 @@ export class ConnectView implements View {
   private async loadScenarios(): Promise<void> {
     try {
       const raw = await this.api.request('scenarios.list', {});
-      const list = (Array.isArray(raw) ? raw : []) as { name: string; description?: string }[];
-      const group = h('div', { class: 'scenario-list', role: 'radiogroup', 'aria-label': 'Simulator scenario' });
+      const list = (Array.isArray(raw) ? raw : []) as {
+        name: string;
+        description?: string;
+        profile?: Record<string, unknown>;
+      }[];
+      const group = h('div', {
+        class: 'scenario-list',
+        role: 'radiogroup',
+        'aria-label': 'Simulator scenario',
+      });
       for (const s of list) {
         const id = `scenario-${s.name}`;
-        const radio = h('input', { type: 'radio', name: 'scenario', id, value: s.name, checked: (this.selectedScenario ?? list[0]?.name) === s.name });
-        radio.addEventListener('change', () => (this.selectedScenario = s.name));
-        group.append(h('label', { for: id, class: 'scenario' }, radio, h('span', { class: 'scenario-name' }, s.name), h('span', { class: 'scenario-desc' }, s.description ?? '')));
+        const radio = h('input', {
+          type: 'radio',
+          name: 'scenario',
+          id,
+          value: s.name,
+          checked: (this.selectedScenario ?? list[0]?.name) === s.name,
+        });
+        radio.addEventListener('change', () => {
+          this.selectedScenario = s.name;
+          // The scenario's demo profile is the right starting point for its simulated pack.
+          if (s.profile) {
+            this.form.fill(s.profile);
+            this.scheduleValidate();
+          }
+        });
+        group.append(
+          h(
+            'label',
+            { for: id, class: 'scenario' },
+            radio,
+            h('span', { class: 'scenario-name' }, s.name),
+            h('span', { class: 'scenario-desc' }, s.description ?? ''),
+          ),
+        );
       }
       this.selectedScenario ??= list[0]?.name ?? null;
       this.scenariosHost.replaceChildren(group);
     } catch (err) {
-      this.scenariosHost.replaceChildren(h('p', { class: 'error-text' }, `The simulator scenarios could not be listed: ${errorText(err)}`));
+      this.scenariosHost.replaceChildren(
+        h('p', { class: 'error-text' }, `The simulator scenarios could not be listed: ${errorText(err)}`),
+      );
     }
   }
 
@@ -243,7 +384,12 @@ export class ConnectView implements View {
   async validate(): Promise<boolean> {
     const profile = this.form.read();
     try {
-      const result = (await this.api.request('profile.validate', { profile })) as { ok: boolean; error?: string; key?: string; profile?: ResolvedProfile };
+      const result = (await this.api.request('profile.validate', { profile })) as {
+        ok: boolean;
+        error?: string;
+        key?: string;
+        profile?: ResolvedProfile;
+      };
       if (!result.ok) {
         this.validity = { ok: false, message: result.error ?? 'refused' };
         this.form.showError(result.key ?? null, result.error ?? 'refused');
@@ -269,10 +415,33 @@ export class ConnectView implements View {
     const outcomes = raw.lines ?? [];
     const body = h('tbody');
     outcomes.forEach((o, i) => {
-      body.append(h('tr', { class: `preview-${o.result.kind}` }, h('td', { class: 'num' }, String(i + 1)), h('td', {}, h('code', {}, lines[i] ?? '')), h('td', {}, describeOutcome(o))));
+      body.append(
+        h(
+          'tr',
+          { class: `preview-${o.result.kind}` },
+          h('td', { class: 'num' }, String(i + 1)),
+          h('td', {}, h('code', {}, lines[i] ?? '')),
+          h('td', {}, describeOutcome(o)),
+        ),
+      );
     });
     this.previewOut.replaceChildren(
-      h('table', { class: 'preview-table' }, h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, '#'), h('th', { scope: 'col' }, 'Line'), h('th', { scope: 'col' }, 'Read as'))), body),
+      h(
+        'table',
+        { class: 'preview-table' },
+        h(
+          'thead',
+          {},
+          h(
+            'tr',
+            {},
+            h('th', { scope: 'col' }, '#'),
+            h('th', { scope: 'col' }, 'Line'),
+            h('th', { scope: 'col' }, 'Read as'),
+          ),
+        ),
+        body,
+      ),
     );
   }
 
@@ -280,7 +449,8 @@ export class ConnectView implements View {
     if (this.sourceKind === 'simulator') {
       if (!this.selectedScenario) return 'Pick a simulator scenario first.';
       const speedup = Number(this.speedup.value);
-      if (!Number.isFinite(speedup) || speedup <= 0) return `Speed-up must be a positive number (got "${this.speedup.value}").`;
+      if (!Number.isFinite(speedup) || speedup <= 0)
+        return `Speed-up must be a positive number (got "${this.speedup.value}").`;
       return { kind: 'simulator', scenario: this.selectedScenario, speedup };
     }
     if (!this.selectedPort) return 'Pick a serial port first (press Refresh ports if the list is empty).';
@@ -316,7 +486,9 @@ export class ConnectView implements View {
     const id = this.stationIdInput.value.trim();
     const label = this.stationLabelInput.value.trim();
     try {
-      await this.api.request('stations.add', { config: { id, ...(label ? { label } : {}), source: source as never, profile: this.form.read() } });
+      await this.api.request('stations.add', {
+        config: { id, ...(label ? { label } : {}), source: source as never, profile: this.form.read() },
+      });
       this.status.textContent = `Station ${id} added.`;
       this.nav.open({ view: 'bench', stationId: id });
     } catch (err) {

@@ -3,7 +3,7 @@
  * as a bar and as a number, the evidence, the next steps, and the charts with the diagnosed
  * time marked. Opened from "Why?" on an alarm or from "Diagnose here" on a chart.
  */
-import type { EngineEvent } from '../../shared/engine/types';
+import type { EngineEvent } from '@shared/engine/types';
 import type { Api } from '../api';
 import { LiveStationSource, RecordedRunSource } from '../charts/sources';
 import { TrendPanel, BENCH_QUANTITIES } from '../charts/trend-panel';
@@ -45,16 +45,37 @@ export class DiagnosisView implements View {
       void this.run({ ...this.last, atT: t });
     });
     root.append(
-      h('div', { class: 'view-head' }, h('h2', {}, 'Diagnosis'), h('p', { class: 'quiet' }, 'Why the charger did what it did, ranked by confidence. Click a chart to diagnose another moment.')),
+      h(
+        'div',
+        { class: 'view-head' },
+        h('h2', {}, 'Diagnosis'),
+        h(
+          'p',
+          { class: 'quiet' },
+          'Why the charger did what it did, ranked by confidence. Click a chart to diagnose another moment.',
+        ),
+      ),
       this.headline,
-      h('div', { class: 'diag-body' }, this.causes, h('div', { class: 'diag-chart-col' }, this.legendSlot, this.chartHost)),
+      h(
+        'div',
+        { class: 'diag-body' },
+        this.causes,
+        h('div', { class: 'diag-chart-col' }, this.legendSlot, this.chartHost),
+      ),
     );
   }
 
   show(target: ViewTarget): void {
-    if (target.view === 'diagnosis' && (target.stationId || target.runId !== undefined)) void this.run(target);
+    if (target.view === 'diagnosis' && (target.stationId || target.runId !== undefined))
+      void this.run(target);
     else if (!this.last) {
-      this.headline.replaceChildren(h('p', {}, 'Nothing diagnosed yet. Press “Why?” on a critical alarm, or mark a time on a Bench view chart and press “Diagnose here”.'));
+      this.headline.replaceChildren(
+        h(
+          'p',
+          {},
+          'Nothing diagnosed yet. Press “Why?” on a critical alarm, or mark a time on a Bench view chart and press “Diagnose here”.',
+        ),
+      );
       this.causes.replaceChildren();
     }
     this.panel.requestRedraw('view');
@@ -66,20 +87,38 @@ export class DiagnosisView implements View {
     if (target.view !== 'diagnosis') return;
     this.last = target;
     const what = target.runId !== undefined ? `run ${target.runId}` : `station ${target.stationId}`;
-    this.headline.replaceChildren(h('p', { class: 'quiet' }, `Diagnosing ${what}${target.atT !== undefined ? ` at ${formatRunTime(target.atT)}` : ''}…`));
+    this.headline.replaceChildren(
+      h(
+        'p',
+        { class: 'quiet' },
+        `Diagnosing ${what}${target.atT !== undefined ? ` at ${formatRunTime(target.atT)}` : ''}…`,
+      ),
+    );
     try {
       let diagnosis: Diagnosis;
       let events: readonly EngineEvent[];
       if (target.runId !== undefined) {
-        diagnosis = readDiagnosis(await this.api.request('runs.diagnose', { runId: target.runId, ...(target.atT !== undefined ? { atT: target.atT } : {}) }));
+        diagnosis = readDiagnosis(
+          await this.api.request('runs.diagnose', {
+            runId: target.runId,
+            ...(target.atT !== undefined ? { atT: target.atT } : {}),
+          }),
+        );
         const run = readRun(await this.api.request('runs.get', { runId: target.runId }));
         events = readEvents(await this.api.request('runs.events', { runId: target.runId }));
-        this.panel.setSource(await RecordedRunSource.open(this.api, run.id, run.durationS, run.lines, events));
+        this.panel.setSource(
+          await RecordedRunSource.open(this.api, run.id, run.durationS, run.lines, events),
+        );
         this.legendSlot.replaceChildren(phaseLegend(run.chemistry));
       } else {
         const model = this.store.stations.get(target.stationId!);
         if (!model) throw new Error(`station ${target.stationId} is gone; open its run from the Runs view`);
-        diagnosis = readDiagnosis(await this.api.request('stations.diagnose', { stationId: target.stationId!, ...(target.atT !== undefined ? { atT: target.atT } : {}) }));
+        diagnosis = readDiagnosis(
+          await this.api.request('stations.diagnose', {
+            stationId: target.stationId!,
+            ...(target.atT !== undefined ? { atT: target.atT } : {}),
+          }),
+        );
         events = model.events;
         this.panel.setSource(new LiveStationSource(this.api, model));
         this.legendSlot.replaceChildren(phaseLegend(model.view.profile.chemistry));
@@ -87,9 +126,17 @@ export class DiagnosisView implements View {
       this.render(what, diagnosis, target);
       const half = Math.max(1800, diagnosis.t * 0.15);
       this.panel.showWindow(Math.max(0, diagnosis.t - half), diagnosis.t + half);
-      this.panel.setMarkers([{ t: diagnosis.t, kind: 'diagnosed', label: `Diagnosed ${formatRunTime(diagnosis.t)}` }]);
+      this.panel.setMarkers([
+        { t: diagnosis.t, kind: 'diagnosed', label: `Diagnosed ${formatRunTime(diagnosis.t)}` },
+      ]);
     } catch (err) {
-      this.headline.replaceChildren(h('p', { class: 'error-text', role: 'alert' }, `The diagnosis of ${what} failed: ${errorText(err)}. Nothing was changed; try again, or open the run from the Runs view.`));
+      this.headline.replaceChildren(
+        h(
+          'p',
+          { class: 'error-text', role: 'alert' },
+          `The diagnosis of ${what} failed: ${errorText(err)}. Nothing was changed; try again, or open the run from the Runs view.`,
+        ),
+      );
       this.causes.replaceChildren();
     }
   }
@@ -97,9 +144,24 @@ export class DiagnosisView implements View {
   private render(what: string, d: Diagnosis, target: ViewTarget): void {
     const back =
       target.view === 'diagnosis' && target.runId !== undefined
-        ? button('Open the run on the Bench view', () => this.nav.open({ view: 'bench', runId: target.runId }), { class: 'btn btn-quiet' })
-        : button('Back to the Bench view', () => this.nav.open({ view: 'bench', stationId: target.view === 'diagnosis' ? target.stationId : undefined }), { class: 'btn btn-quiet' });
-    this.headline.replaceChildren(h('p', { class: 'diag-title' }, `Diagnosis of ${what} at ${formatRunTime(d.t)} of the run`), back);
+        ? button(
+            'Open the run on the Bench view',
+            () => this.nav.open({ view: 'bench', runId: target.runId }),
+            { class: 'btn btn-quiet' },
+          )
+        : button(
+            'Back to the Bench view',
+            () =>
+              this.nav.open({
+                view: 'bench',
+                stationId: target.view === 'diagnosis' ? target.stationId : undefined,
+              }),
+            { class: 'btn btn-quiet' },
+          );
+    this.headline.replaceChildren(
+      h('p', { class: 'diag-title' }, `Diagnosis of ${what} at ${formatRunTime(d.t)} of the run`),
+      back,
+    );
     if (d.causes.length === 0) {
       this.causes.replaceChildren(h('p', {}, 'No cause stands out at this time.'));
       return;
@@ -113,17 +175,42 @@ export class DiagnosisView implements View {
         h(
           'li',
           { class: `cause${i === 0 ? ' cause-top' : ''}`, 'data-code': c.code },
-          h('div', { class: 'cause-head' }, h('span', { class: 'cause-rank' }, `${i + 1}.`), h('span', { class: 'cause-name' }, CAUSE_WORDS[c.code] ?? c.code), h('code', { class: 'cause-code' }, c.code)),
           h(
             'div',
-            { class: 'confidence', role: 'meter', 'aria-valuemin': '0', 'aria-valuemax': '100', 'aria-valuenow': String(pct), 'aria-label': `Confidence ${pct} percent` },
+            { class: 'cause-head' },
+            h('span', { class: 'cause-rank' }, `${i + 1}.`),
+            h('span', { class: 'cause-name' }, CAUSE_WORDS[c.code] ?? c.code),
+            h('code', { class: 'cause-code' }, c.code),
+          ),
+          h(
+            'div',
+            {
+              class: 'confidence',
+              role: 'meter',
+              'aria-valuemin': '0',
+              'aria-valuemax': '100',
+              'aria-valuenow': String(pct),
+              'aria-label': `Confidence ${pct} percent`,
+            },
             h('span', { class: 'confidence-track', 'aria-hidden': 'true' }, fill),
             h('span', { class: 'confidence-text' }, `${pct} % confidence`),
           ),
           h('h4', {}, 'Evidence'),
-          h('ul', { class: 'evidence' }, ...(c.evidence.length ? c.evidence.map((e) => h('li', {}, e)) : [h('li', { class: 'quiet' }, 'none recorded')])),
+          h(
+            'ul',
+            { class: 'evidence' },
+            ...(c.evidence.length
+              ? c.evidence.map((e) => h('li', {}, e))
+              : [h('li', { class: 'quiet' }, 'none recorded')]),
+          ),
           h('h4', {}, 'Next steps'),
-          h('ul', { class: 'next-steps' }, ...(c.next.length ? c.next.map((n) => h('li', {}, n)) : [h('li', { class: 'quiet' }, 'none suggested')])),
+          h(
+            'ul',
+            { class: 'next-steps' },
+            ...(c.next.length
+              ? c.next.map((n) => h('li', {}, n))
+              : [h('li', { class: 'quiet' }, 'none suggested')]),
+          ),
         ),
       );
     });

@@ -36,12 +36,31 @@ export class FeedView implements View {
   private filter = '';
   private queue: FeedRow[] = [];
   private frame = 0;
-  private readonly list = h('ol', { class: 'feed-list', 'aria-label': 'Received lines, oldest first', 'aria-live': 'off' });
+  private readonly list = h('ol', {
+    class: 'feed-list',
+    'aria-label': 'Received lines, oldest first',
+    'aria-live': 'off',
+  });
   private readonly select = h('select', { id: 'feed-station', 'aria-label': 'Station of the Line feed' });
-  private readonly filterInput = h('input', { id: 'feed-filter', type: 'search', placeholder: 'text in the line or reason', autocomplete: 'off' });
-  private readonly pauseBtn = button('Pause', () => this.togglePause(), { class: 'btn toggle', 'aria-pressed': 'false', id: 'feed-pause' });
+  private readonly filterInput = h('input', {
+    id: 'feed-filter',
+    type: 'search',
+    placeholder: 'text in the line or reason',
+    autocomplete: 'off',
+  });
+  private readonly pauseBtn = button('Pause', () => this.togglePause(), {
+    class: 'btn toggle',
+    'aria-pressed': 'false',
+    id: 'feed-pause',
+  });
   private readonly counts = h('span', { class: 'feed-counts', role: 'status' });
-  private readonly sendInput = h('input', { id: 'feed-send-text', type: 'text', autocomplete: 'off', maxlength: 4096, placeholder: 'a line for the charger firmware' });
+  private readonly sendInput = h('input', {
+    id: 'feed-send-text',
+    type: 'text',
+    autocomplete: 'off',
+    maxlength: 4096,
+    placeholder: 'a line for the charger firmware',
+  });
   private readonly endingSelect = h('select', { id: 'feed-send-ending' });
   private readonly sendStatus = h('span', { class: 'send-status', role: 'status', 'aria-live': 'polite' });
 
@@ -130,8 +149,11 @@ export class FeedView implements View {
   private fillSelect(): void {
     const ids = this.store.sortedStations().map((m) => m.view.id);
     const current = [...this.select.options].map((o) => o.value);
-    if (JSON.stringify(ids) === JSON.stringify(current) && this.select.value === (this.stationId ?? '')) return;
-    this.select.replaceChildren(...ids.map((id) => h('option', { value: id, selected: id === this.stationId }, id)));
+    if (JSON.stringify(ids) === JSON.stringify(current) && this.select.value === (this.stationId ?? ''))
+      return;
+    this.select.replaceChildren(
+      ...ids.map((id) => h('option', { value: id, selected: id === this.stationId }, id)),
+    );
   }
 
   private setStation(id: string): void {
@@ -155,7 +177,11 @@ export class FeedView implements View {
 
   private matches(row: FeedRow): boolean {
     if (!this.filter) return true;
-    return row.text.toLowerCase().includes(this.filter) || (row.reason ?? '').includes(this.filter) || row.kind.includes(this.filter);
+    return (
+      row.text.toLowerCase().includes(this.filter) ||
+      (row.reason ?? '').includes(this.filter) ||
+      row.kind.includes(this.filter)
+    );
   }
 
   private rebuild(): void {
@@ -203,16 +229,31 @@ export class FeedView implements View {
       this.counts.textContent = 'No station';
       return;
     }
-    const held = this.paused ? ` · paused, ${this.heldWhilePaused} new line${this.heldWhilePaused === 1 ? '' : 's'} held` : '';
+    const held = this.paused
+      ? ` · paused, ${this.heldWhilePaused} new line${this.heldWhilePaused === 1 ? '' : 's'} held`
+      : '';
     this.counts.textContent = `${model.view.lines} lines received, ${model.view.rejected} rejected · showing ${this.list.childElementCount}${held}`;
   }
 
   private rowEl(row: FeedRow): HTMLLIElement {
     const marker = MARKERS[row.kind];
-    const li = h('li', { class: `feed-row kind-${row.kind}` }, h('span', { class: 'feed-time' }, formatTimeOfDay(row.rxS)));
+    const li = h(
+      'li',
+      { class: `feed-row kind-${row.kind}` },
+      h('span', { class: 'feed-time' }, formatTimeOfDay(row.rxS)),
+    );
     li.append(h('span', { class: 'feed-marker' }, marker));
-    li.append(h('span', { class: 'feed-text' }, row.text === '' ? '(empty line)' : row.text));
-    if (row.kind === 'rejected') li.append(h('span', { class: 'feed-reason' }, `${row.reason ?? 'rejected'}${row.detail ? `: ${row.detail}` : ''}`));
+    // A sent line shows a line ending it carries as what it is (\r, \n), not as invisible whitespace.
+    const text = row.kind === 'sent' ? row.text.replace(/\r/g, '\\r').replace(/\n/g, '\\n') : row.text;
+    li.append(h('span', { class: 'feed-text' }, text === '' ? '(empty line)' : text));
+    if (row.kind === 'rejected')
+      li.append(
+        h(
+          'span',
+          { class: 'feed-reason' },
+          `${row.reason ?? 'rejected'}${row.detail ? `: ${row.detail}` : ''}`,
+        ),
+      );
     return li;
   }
 

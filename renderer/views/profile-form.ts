@@ -3,9 +3,9 @@
  * mapping, turned into profile JSON (PROTOCOL section 2). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import { CHEMISTRIES } from '../../shared/chemistry/types';
-import type { CanonicalField } from '../../shared/telemetry/types';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import { CHEMISTRIES } from '@shared/chemistry/types';
+import type { CanonicalField } from '@shared/telemetry/types';
 import { h } from '../dom';
 
 interface NumberField {
@@ -58,15 +58,37 @@ export const PRESETS: { label: string; profile: Record<string, unknown> }[] = [
   { label: 'NiMH (chemistry defaults)', profile: { chemistry: 'nimh', cells: 4 } },
   {
     label: 'Demo: garden sensor, 3S Li-ion 2.5 Ah',
-    profile: { name: 'garden-sensor 3S Li-ion', chemistry: 'li-ion', cells: 3, capacityAh: 2.5, chargeCurrentA: 1.0, terminationA: 0.1, timerMin: 240, tempWindowC: [0, 45] },
+    profile: {
+      name: 'garden-sensor 3S Li-ion',
+      chemistry: 'li-ion',
+      cells: 3,
+      capacityAh: 2.5,
+      chargeCurrentA: 1.0,
+      terminationA: 0.1,
+      timerMin: 240,
+      tempWindowC: [0, 45],
+    },
   },
   {
     label: 'Demo: weather station, 4S LiFePO4 6 Ah on a panel',
-    profile: { name: 'weather-station 4S LiFePO4', chemistry: 'lifepo4', cells: 4, capacityAh: 6, chargeCurrentA: 2, inputSetpointV: 17.5 },
+    profile: {
+      name: 'weather-station 4S LiFePO4',
+      chemistry: 'lifepo4',
+      cells: 4,
+      capacityAh: 6,
+      chargeCurrentA: 2,
+      inputSetpointV: 17.5,
+    },
   },
   {
     label: "Demo: boat's house battery, 12 V lead-acid 100 Ah",
-    profile: { name: 'boat house battery', chemistry: 'lead-acid', cells: 6, capacityAh: 100, chargeCurrentA: 10 },
+    profile: {
+      name: 'boat house battery',
+      chemistry: 'lead-acid',
+      cells: 6,
+      capacityAh: 100,
+      chargeCurrentA: 10,
+    },
   },
 ];
 
@@ -90,15 +112,34 @@ export function createProfileForm(idPrefix: string): ProfileForm {
 
   const numberRow = (f: NumberField) => {
     const id = `${idPrefix}-${f.key.replace(/\./g, '-')}`;
-    const input = h('input', { id, type: 'text', inputmode: 'decimal', autocomplete: 'off', 'data-key': f.key, 'aria-describedby': `${id}-err` });
+    const input = h('input', {
+      id,
+      type: 'text',
+      inputmode: 'decimal',
+      autocomplete: 'off',
+      'data-key': f.key,
+      'aria-describedby': `${id}-err`,
+    });
     const err = h('span', { class: 'field-error', id: `${id}-err`, 'aria-live': 'polite' });
     inputs.set(f.key, input);
     errors.set(f.key, err);
-    return h('div', { class: 'form-row' }, h('label', { for: id }, f.label, f.unit ? h('span', { class: 'unit' }, ` [${f.unit}]`) : null), input, err);
+    return h(
+      'div',
+      { class: 'form-row' },
+      h('label', { for: id }, f.label, f.unit ? h('span', { class: 'unit' }, ` [${f.unit}]`) : null),
+      input,
+      err,
+    );
   };
 
   const nameId = `${idPrefix}-name`;
-  const name = h('input', { id: nameId, type: 'text', autocomplete: 'off', 'data-key': 'name', maxlength: 200 });
+  const name = h('input', {
+    id: nameId,
+    type: 'text',
+    autocomplete: 'off',
+    'data-key': 'name',
+    maxlength: 200,
+  });
   inputs.set('name', name);
   errors.set('name', h('span', { class: 'field-error', id: `${nameId}-err` }));
   const chemId = `${idPrefix}-chemistry`;
@@ -120,13 +161,32 @@ export function createProfileForm(idPrefix: string): ProfileForm {
   });
 
   const mappingRows = MAPPED_FIELDS.map(({ field, words, unitHint }) => {
-    const keyInput = h('input', { type: 'text', autocomplete: 'off', 'data-key': `fields.${field}.key`, 'aria-label': `Device key for ${words} (${field})`, placeholder: field });
-    const unitInput = h('input', { type: 'text', autocomplete: 'off', 'data-key': `fields.${field}.unit`, 'aria-label': `Unit of ${words} (${unitHint})`, placeholder: unitHint });
+    const keyInput = h('input', {
+      type: 'text',
+      autocomplete: 'off',
+      'data-key': `fields.${field}.key`,
+      'aria-label': `Device key for ${words} (${field})`,
+      placeholder: field,
+    });
+    const unitInput = h('input', {
+      type: 'text',
+      autocomplete: 'off',
+      'data-key': `fields.${field}.unit`,
+      'aria-label': `Unit of ${words} (${unitHint})`,
+      placeholder: unitHint,
+    });
     inputs.set(`fields.${field}.key`, keyInput);
     inputs.set(`fields.${field}.unit`, unitInput);
     const err = h('span', { class: 'field-error' });
     errors.set(`fields.${field}`, err);
-    return h('tr', {}, h('th', { scope: 'row' }, h('code', {}, field), ` ${words}`), h('td', {}, keyInput), h('td', {}, unitInput), h('td', {}, err));
+    return h(
+      'tr',
+      {},
+      h('th', { scope: 'row' }, h('code', {}, field), ` ${words}`),
+      h('td', {}, keyInput),
+      h('td', {}, unitInput),
+      h('td', {}, err),
+    );
   });
 
   const caution = h(
@@ -142,14 +202,42 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     summary,
     h('div', { class: 'form-row' }, h('label', { for: presetId }, 'Preset'), preset),
     h('div', { class: 'form-row' }, h('label', { for: nameId }, 'Profile name'), name, errors.get('name')!),
-    h('div', { class: 'form-row' }, h('label', { for: chemId }, 'Chemistry'), chemistry, errors.get('chemistry')!),
+    h(
+      'div',
+      { class: 'form-row' },
+      h('label', { for: chemId }, 'Chemistry'),
+      chemistry,
+      errors.get('chemistry')!,
+    ),
     h('fieldset', {}, h('legend', {}, 'Pack'), ...BASICS.map(numberRow)),
-    h('fieldset', { class: 'limits' }, h('legend', {}, 'Limits (empty = chemistry default)'), caution, ...LIMITS.map(numberRow)),
+    h(
+      'fieldset',
+      { class: 'limits' },
+      h('legend', {}, 'Limits (empty = chemistry default)'),
+      caution,
+      ...LIMITS.map(numberRow),
+    ),
     h(
       'fieldset',
       {},
       h('legend', {}, 'Field mapping: which key the device prints for each field'),
-      h('table', { class: 'mapping-table' }, h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Field'), h('th', { scope: 'col' }, 'Device key'), h('th', { scope: 'col' }, 'Unit'), h('th', { scope: 'col' }, ''))), h('tbody', {}, ...mappingRows)),
+      h(
+        'table',
+        { class: 'mapping-table' },
+        h(
+          'thead',
+          {},
+          h(
+            'tr',
+            {},
+            h('th', { scope: 'col' }, 'Field'),
+            h('th', { scope: 'col' }, 'Device key'),
+            h('th', { scope: 'col' }, 'Unit'),
+            h('th', { scope: 'col' }, ''),
+          ),
+        ),
+        h('tbody', {}, ...mappingRows),
+      ),
     ),
   );
 
@@ -201,8 +289,10 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       }
       const win = profile.tempWindowC;
       if (Array.isArray(win)) {
-        (inputs.get('tempWindowC.0') as HTMLInputElement).value = win[0] === null || win[0] === undefined ? '' : String(win[0]);
-        (inputs.get('tempWindowC.1') as HTMLInputElement).value = win[1] === null || win[1] === undefined ? '' : String(win[1]);
+        (inputs.get('tempWindowC.0') as HTMLInputElement).value =
+          win[0] === null || win[0] === undefined ? '' : String(win[0]);
+        (inputs.get('tempWindowC.1') as HTMLInputElement).value =
+          win[1] === null || win[1] === undefined ? '' : String(win[1]);
       }
       const fields = (profile.fields ?? {}) as Record<string, { key?: string; unit?: string }>;
       for (const [field, m] of Object.entries(fields)) {
@@ -233,7 +323,10 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         const el = errors.get(k) ?? (k === 'tempWindowC' ? errors.get('tempWindowC.0') : undefined);
         if (el) {
           el.textContent = message;
-          const input = inputs.get(k) ?? inputs.get(`${k}.key`) ?? (k === 'tempWindowC' ? inputs.get('tempWindowC.0') : undefined);
+          const input =
+            inputs.get(k) ??
+            inputs.get(`${k}.key`) ??
+            (k === 'tempWindowC' ? inputs.get('tempWindowC.0') : undefined);
           input?.setAttribute('aria-invalid', 'true');
           return;
         }

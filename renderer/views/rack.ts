@@ -14,8 +14,15 @@ const RACK_REDRAW_MS = 500;
 export class RackView implements View {
   private visible = false;
   private timer = 0;
-  private readonly grid = h('div', { class: 'rack-grid', role: 'list', 'aria-label': 'Stations, most urgent first' });
-  private readonly tiles = new Map<string, { tile: HTMLButtonElement; spark: HTMLCanvasElement; body: HTMLElement }>();
+  private readonly grid = h('div', {
+    class: 'rack-grid',
+    role: 'list',
+    'aria-label': 'Stations, most urgent first',
+  });
+  private readonly tiles = new Map<
+    string,
+    { tile: HTMLButtonElement; spark: HTMLCanvasElement; body: HTMLElement }
+  >();
 
   constructor(
     root: HTMLElement,
@@ -23,7 +30,16 @@ export class RackView implements View {
     private readonly nav: Navigator,
   ) {
     root.append(
-      h('div', { class: 'view-head' }, h('h2', {}, 'Rack'), h('p', { class: 'quiet' }, 'Every station at a glance. A station with a critical alarm or a fault comes first. Enter or click opens its Bench view.')),
+      h(
+        'div',
+        { class: 'view-head' },
+        h('h2', {}, 'Rack'),
+        h(
+          'p',
+          { class: 'quiet' },
+          'Every station at a glance. A station with a critical alarm or a fault comes first. Enter or click opens its Bench view.',
+        ),
+      ),
       this.grid,
     );
     store.on('stations', () => this.schedule());
@@ -51,7 +67,9 @@ export class RackView implements View {
   private render(): void {
     const models = this.store.sortedStations();
     if (models.length === 0) {
-      this.grid.replaceChildren(h('p', { class: 'quiet' }, 'No stations yet: add one in Connect & profile (Alt+5).'));
+      this.grid.replaceChildren(
+        h('p', { class: 'quiet' }, 'No stations yet: add one in Connect & profile (Alt+5).'),
+      );
       this.tiles.clear();
       return;
     }
@@ -61,7 +79,11 @@ export class RackView implements View {
       seen.add(model.view.id);
       let entry = this.tiles.get(model.view.id);
       if (!entry) {
-        const tile = h('button', { type: 'button', class: 'tile', 'data-station': model.view.id }) as HTMLButtonElement;
+        const tile = h('button', {
+          type: 'button',
+          class: 'tile',
+          'data-station': model.view.id,
+        }) as HTMLButtonElement;
         tile.addEventListener('click', () => this.nav.open({ view: 'bench', stationId: model.view.id }));
         const body = h('span', { class: 'tile-body' });
         const spark = h('canvas', { class: 'tile-spark', 'aria-hidden': 'true' });
@@ -95,11 +117,24 @@ export class RackView implements View {
     const swatch = hatchSwatch(state.phase, 18, 18);
     swatch.setAttribute('aria-hidden', 'true');
     const alarmLine = worst
-      ? h('span', { class: 'tile-alarm' }, levelBadge(worst.level), ` ${worst.code}${model.isAcked(worst) ? ' (acknowledged)' : ''}${alarms.length > 1 ? ` +${alarms.length - 1} more` : ''}`)
+      ? h(
+          'span',
+          { class: 'tile-alarm' },
+          levelBadge(worst.level),
+          ` ${worst.code}${model.isAcked(worst) ? ' (acknowledged)' : ''}${alarms.length > 1 ? ` +${alarms.length - 1} more` : ''}`,
+        )
       : h('span', { class: 'tile-alarm tile-ok' }, '✓ No active alarms');
-    const sourceLine = view.source.state !== 'open' ? h('span', { class: 'tile-source' }, `Source ${view.source.state}: ${view.source.detail}`) : '';
+    const sourceLine =
+      view.source.state !== 'open'
+        ? h('span', { class: 'tile-source' }, `Source ${view.source.state}: ${view.source.detail}`)
+        : '';
     entry.body.replaceChildren(
-      h('span', { class: 'tile-name' }, view.label || view.id, h('span', { class: 'tile-id' }, ` ${view.id}`)),
+      h(
+        'span',
+        { class: 'tile-name' },
+        view.label || view.id,
+        h('span', { class: 'tile-id' }, ` ${view.id}`),
+      ),
       h('span', { class: 'tile-phase' }, swatch, phaseWords(state.phase, view.profile.chemistry)),
       h(
         'span',
@@ -112,7 +147,9 @@ export class RackView implements View {
       alarmLine,
       sourceLine,
     );
-    const alarmWords = worst ? `${worst.level} alarm ${worst.code}${model.isAcked(worst) ? ', acknowledged' : ''}` : 'no active alarms';
+    const alarmWords = worst
+      ? `${worst.level} alarm ${worst.code}${model.isAcked(worst) ? ', acknowledged' : ''}`
+      : 'no active alarms';
     entry.tile.setAttribute(
       'aria-label',
       `${view.label || view.id}: ${phaseWords(state.phase, view.profile.chemistry)}, ${formatNumber(last?.vbatV, 2, 'volts')}, ${formatNumber(last?.ibatA, 2, 'amps')}, ${formatNumber(last?.tempC, 1, 'degrees Celsius')}, ${formatNumber(state.metrics.ah, 2, 'amp-hours')}, ${alarmWords}. Opens the Bench view.`,

@@ -34,8 +34,18 @@ export class RunsView implements View {
         'div',
         { class: 'view-head' },
         h('h2', {}, 'Runs'),
-        h('p', { class: 'quiet' }, 'Recorded runs, newest first. Open one to browse it on the Bench view, or replay it through the pipeline as a new station.'),
-        h('div', { class: 'runs-tools' }, button('Refresh', () => void this.load(), { class: 'btn' }), h('label', { for: 'replay-speed', class: 'field-label' }, 'Replay speed'), this.speed),
+        h(
+          'p',
+          { class: 'quiet' },
+          'Recorded runs, newest first. Open one to browse it on the Bench view, or replay it through the pipeline as a new station.',
+        ),
+        h(
+          'div',
+          { class: 'runs-tools' },
+          button('Refresh', () => void this.load(), { class: 'btn' }),
+          h('label', { for: 'replay-speed', class: 'field-label' }, 'Replay speed'),
+          this.speed,
+        ),
       ),
       this.status,
       this.tableHost,
@@ -55,44 +65,86 @@ export class RunsView implements View {
       this.runs = readRuns(await this.api.request('runs.list', {})).sort((a, b) => b.startRxS - a.startRxS);
       this.renderTable();
     } catch (err) {
-      this.tableHost.replaceChildren(h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`));
+      this.tableHost.replaceChildren(
+        h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`),
+      );
     }
   }
 
   private renderTable(): void {
     if (this.runs.length === 0) {
-      this.tableHost.replaceChildren(h('p', { class: 'quiet' }, 'No recorded runs yet. A station records a run while it charges.'));
+      this.tableHost.replaceChildren(
+        h('p', { class: 'quiet' }, 'No recorded runs yet. A station records a run while it charges.'),
+      );
       return;
     }
-    const head = h('tr', {}, ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map((c) => h('th', { scope: 'col' }, c)));
+    const head = h(
+      'tr',
+      {},
+      ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map(
+        (c) => h('th', { scope: 'col' }, c),
+      ),
+    );
     const body = h('tbody');
     for (const run of this.runs) body.append(this.row(run));
-    this.tableHost.replaceChildren(h('table', { class: 'runs-table' }, h('caption', { class: 'sr-only' }, 'Recorded runs'), h('thead', {}, head), body));
+    this.tableHost.replaceChildren(
+      h(
+        'table',
+        { class: 'runs-table' },
+        h('caption', { class: 'sr-only' }, 'Recorded runs'),
+        h('thead', {}, head),
+        body,
+      ),
+    );
   }
 
   private row(run: RunListRow): HTMLTableRowElement {
-    const actions = h('td', { class: 'run-actions' });
+    const actions = h('div', { class: 'run-actions' });
     if (this.confirming === run.id) {
       actions.append(
-        h('span', { class: 'confirm-text' }, `Delete run ${run.id} and all its samples? This cannot be undone.`),
+        h(
+          'span',
+          { class: 'confirm-text' },
+          `Delete run ${run.id} and all its samples? This cannot be undone.`,
+        ),
         button('Yes, delete', () => void this.remove(run), { class: 'btn btn-small btn-danger' }),
-        button('Keep it', () => {
-          this.confirming = null;
-          this.renderTable();
-        }, { class: 'btn btn-small' }),
+        button(
+          'Keep it',
+          () => {
+            this.confirming = null;
+            this.renderTable();
+          },
+          { class: 'btn btn-small' },
+        ),
       );
     } else {
       const label = (what: string) => `${what} run ${run.id}`;
       actions.append(
-        button('Open', () => this.nav.open({ view: 'bench', runId: run.id }), { class: 'btn btn-small', 'aria-label': label('Open') }),
-        button('Replay', () => void this.replay(run), { class: 'btn btn-small', 'aria-label': label('Replay') }),
-        button('CSV', () => void this.exportCsv(run), { class: 'btn btn-small', 'aria-label': label('Export CSV of') }),
-        button('Report', () => void this.report(run), { class: 'btn btn-small', 'aria-label': label('Save the Run report of') }),
-        button('Delete…', () => {
-          this.confirming = run.id;
-          this.renderTable();
-          (this.tableHost.querySelector('.btn-danger') as HTMLButtonElement | null)?.focus();
-        }, { class: 'btn btn-small btn-quiet', 'aria-label': label('Delete') }),
+        button('Open', () => this.nav.open({ view: 'bench', runId: run.id }), {
+          class: 'btn btn-small',
+          'aria-label': label('Open'),
+        }),
+        button('Replay', () => void this.replay(run), {
+          class: 'btn btn-small',
+          'aria-label': label('Replay'),
+        }),
+        button('CSV', () => void this.exportCsv(run), {
+          class: 'btn btn-small',
+          'aria-label': label('Export CSV of'),
+        }),
+        button('Report', () => void this.report(run), {
+          class: 'btn btn-small',
+          'aria-label': label('Save the Run report of'),
+        }),
+        button(
+          'Delete…',
+          () => {
+            this.confirming = run.id;
+            this.renderTable();
+            (this.tableHost.querySelector('.btn-danger') as HTMLButtonElement | null)?.focus();
+          },
+          { class: 'btn btn-small btn-quiet', 'aria-label': label('Delete') },
+        ),
       );
     }
     return h(
@@ -106,7 +158,7 @@ export class RunsView implements View {
       h('td', {}, run.endReason ?? 'recording'),
       h('td', { class: 'num' }, formatNumber(run.ah, 3, 'Ah')),
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
-      actions,
+      h('td', {}, actions),
     );
   }
 
@@ -134,21 +186,45 @@ export class RunsView implements View {
   }
 
   private async exportCsv(run: RunListRow): Promise<void> {
-    await this.deliver(run, 'CSV', () => this.api.request('runs.exportCsv', { runId: run.id }), `taperline-run-${run.id}.csv`);
+    await this.deliver(
+      run,
+      'CSV',
+      () => this.api.request('runs.exportCsv', { runId: run.id }),
+      `taperline-run-${run.id}.csv`,
+    );
   }
 
   private async report(run: RunListRow): Promise<void> {
-    await this.deliver(run, 'Run report', () => this.api.request('runs.report', { runId: run.id }), `taperline-run-${run.id}-report.html`);
+    await this.deliver(
+      run,
+      'Run report',
+      () => this.api.request('runs.report', { runId: run.id }),
+      `taperline-run-${run.id}-report.html`,
+    );
   }
 
   /** Web mode answers with a URL (offered as a download link); Electron saves and says where. */
-  private async deliver(run: RunListRow, what: string, ask: () => Promise<unknown>, fileName: string): Promise<void> {
+  private async deliver(
+    run: RunListRow,
+    what: string,
+    ask: () => Promise<unknown>,
+    fileName: string,
+  ): Promise<void> {
     this.status.textContent = `Preparing the ${what} of run ${run.id}…`;
     try {
       const result = (await ask()) as { url?: string; savedTo?: string; cancelled?: boolean };
       if (result.url) {
         const href = this.withToken(result.url);
-        const link = h('a', { href, download: fileName, class: 'download-link', id: what === 'CSV' ? 'csv-link' : 'report-link' }, `Download the ${what} of run ${run.id}`);
+        const link = h(
+          'a',
+          {
+            href,
+            download: fileName,
+            class: 'download-link',
+            id: what === 'CSV' ? 'csv-link' : 'report-link',
+          },
+          `Download the ${what} of run ${run.id}`,
+        );
         this.status.replaceChildren(link);
         link.focus();
       } else if (result.savedTo) {

@@ -1,7 +1,11 @@
 /** Runtime-validated request schemas (zod). Anything not matching is refused with the reason. */
 import { z } from 'zod';
 
-const stationId = z.string().min(1).max(64).regex(/^[A-Za-z0-9._-]+$/, 'letters, digits, . _ - only');
+const stationId = z
+  .string()
+  .min(1)
+  .max(64)
+  .regex(/^[A-Za-z0-9._-]+$/, 'letters, digits, . _ - only');
 const runId = z.number().int().positive();
 const lineEnding = z.enum(['\n', '\r\n', '\r', '']);
 const seriesField = z.enum(['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA']);
@@ -63,13 +67,22 @@ export const requestSchemas = {
   'scenarios.list': z.object({}).strict(),
   'profile.validate': z.object({ profile: profileJson }).strict(),
   /** Parse sample lines with a draft profile, for the live preview of a field mapping. */
-  'profile.preview': z.object({ profile: profileJson, lines: z.array(z.string().max(4096)).max(200) }).strict(),
+  'profile.preview': z
+    .object({ profile: profileJson, lines: z.array(z.string().max(4096)).max(200) })
+    .strict(),
   'runs.list': z.object({}).strict(),
   'runs.get': z.object({ runId }).strict(),
   'runs.overview': z
-    .object({ runId, fields: z.array(seriesField).min(1), ...window, buckets: z.number().int().min(1).max(10_000) })
+    .object({
+      runId,
+      fields: z.array(seriesField).min(1),
+      ...window,
+      buckets: z.number().int().min(1).max(10_000),
+    })
     .strict(),
-  'runs.samples': z.object({ runId, ...window, limit: z.number().int().min(1).max(200_000).optional() }).strict(),
+  'runs.samples': z
+    .object({ runId, ...window, limit: z.number().int().min(1).max(200_000).optional() })
+    .strict(),
   'runs.events': z.object({ runId }).strict(),
   'runs.lines': z
     .object({ runId, afterRxS: z.number().optional(), limit: z.number().int().min(1).max(10_000).optional() })
@@ -81,7 +94,9 @@ export const requestSchemas = {
   /** Run report (self-contained HTML): saved (Electron) or a download URL (web). */
   'runs.report': z.object({ runId, pdf: z.boolean().optional() }).strict(),
   /** Replay a recorded run as a new simulated-time station (read again through the pipeline). */
-  'runs.replay': z.object({ runId, speed: z.union([z.number().positive().max(100_000), z.literal('max')]) }).strict(),
+  'runs.replay': z
+    .object({ runId, speed: z.union([z.number().positive().max(100_000), z.literal('max')]) })
+    .strict(),
 } as const;
 
 export type RequestMethod = keyof typeof requestSchemas;
@@ -97,7 +112,8 @@ export const requestEnvelopeSchema = z
 
 export type RequestEnvelope = z.infer<typeof requestEnvelopeSchema>;
 
-export type ReplyEnvelope = { id: number; ok: true; result: unknown } | { id: number; ok: false; error: string };
+export type ReplyEnvelope =
+  { id: number; ok: true; result: unknown } | { id: number; ok: false; error: string };
 
 /**
  * Validate one incoming request. Returns the typed method and params, or an error that names
@@ -109,7 +125,8 @@ export function validateRequest(
   | { ok: true; id: number; method: RequestMethod; params: unknown }
   | { ok: false; id: number | null; error: string } {
   const envelope = requestEnvelopeSchema.safeParse(raw);
-  if (!envelope.success) return { ok: false, id: null, error: `bad request envelope: ${formatIssues(envelope.error)}` };
+  if (!envelope.success)
+    return { ok: false, id: null, error: `bad request envelope: ${formatIssues(envelope.error)}` };
   const { id, method } = envelope.data;
   if (!Object.hasOwn(requestSchemas, method)) return { ok: false, id, error: `unknown method "${method}"` };
   const schema = requestSchemas[method as RequestMethod];

@@ -22,15 +22,22 @@ import type {
 } from './types';
 import { MAX_LINE_BYTES } from './types';
 import {
-  clip,
+  clip as clipImport,
   IDENTITY_CONVERSION,
   keyConversion,
-  parseExtraValue,
+  parseExtraValue as parseExtraValueImport,
   parseFieldValue,
-  parsePlainNumber,
-  scanDecimal,
+  parsePlainNumber as parsePlainNumberImport,
+  scanDecimal as scanDecimalImport,
   type KeyConversion,
 } from './units';
+
+// Module-local copies of the helpers the per-line path calls: under CommonJS interop (tests,
+// tsx) an imported binding is read through a getter on every use.
+const clip = clipImport;
+const parseExtraValue = parseExtraValueImport;
+const parsePlainNumber = parsePlainNumberImport;
+const scanDecimal = scanDecimalImport;
 
 export interface LineParser {
   parse(text: string, rxS: number, tooLong?: boolean): LineResult;
@@ -81,6 +88,30 @@ const NOT_TEXT_RESULT = (): LineResult =>
 const BLANK: LineResult = Object.freeze({ kind: 'blank' }) as LineResult;
 
 const reject = (reason: RejectReason, detail: string): LineResult => ({ kind: 'rejected', reason, detail });
+
+interface KeyEntry {
+  key: string;
+  handler: FieldHandler;
+}
+
+/**
+ * A key the fast scans can meet whole: printable ASCII (its first character indexes a
+ * small table) without `=`, quote or separator, which would cut a token before it ends.
+ */
+function isTableKey(key: string): boolean {
+  if (key.length === 0) return false;
+  for (let k = 0; k < key.length; k++) {
+    const c = key.charCodeAt(k);
+    if (c <= 32 || c >= 127 || c === 61 || c === 34 || c === 44 || c === 59) return false;
+  }
+  return true;
+}
+
+/** key is written at `from` in text, beyond its first character (the caller matched that). */
+function restMatches(key: string, text: string, from: number): boolean {
+  for (let k = 1; k < key.length; k++) if (key.charCodeAt(k) !== text.charCodeAt(from + k)) return false;
+  return true;
+}
 
 function isSeparator(c: number): boolean {
   return c === 32 || c === 44 || c === 9 || c === 59; // space , tab ;
@@ -150,9 +181,34 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
     return undefined;
   }
 
+  // The same keys grouped by first character, for keyBeforeEquals. Only keys the fast path
+  // can meet whole are tabled; any other token takes the search for `=` and matchKey.
+  const keysByFirst: KeyEntry[][] = [];
+  for (const [key, handler] of keyMap) {
+    if (isTableKey(key)) (keysByFirst[key.charCodeAt(0)] ??= []).push({ key, handler });
+  }
+
+  /**
+   * The tabled key written at `from` and directly followed by `=`: the key=value fast path
+   * finds known keys this way without searching for the `=` first.
+   */
+  function keyBeforeEquals(s: string, from: number): KeyEntry | undefined {
+    const candidates = keysByFirst[s.charCodeAt(from)];
+    if (candidates !== undefined) {
+      for (let k = 0; k < candidates.length; k++) {
+        const cand = candidates[k];
+        // startsWith is a runtime call per key; the loop over a few characters is inlined.
+        if (s.charCodeAt(from + cand.key.length) === 61 /* = */ && restMatches(cand.key, s, from))
+          return cand;
+      }
+    }
+    return undefined;
+  }
+
   /**
    * Stores the value text[from, to) of a canonical field. The common cases (a plain decimal,
-   * a 0/1 flag) are read in place; everything else goes through setFromText.
+   * a 0/1 flag, a lower-case source name) are read in place; everything else goes through
+   * setFromText.
    */
   function setFromRange(
     b: Build,
@@ -182,6 +238,12 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
       if (c === 48 || c === 49) {
         if (h.field === 'chg') b.sample.chg = c === 49;
         else b.sample.flt = c === 49;
+        return true;
+      }
+    } else if (kind === 2) {
+      const src = sourceInPlace(s, from, to);
+      if (src !== null) {
+        b.sample.src = src;
         return true;
       }
     }
@@ -333,10 +395,13 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
   }
 
   /**
-   * The hot path: one kind of separator, no quotes, every token `key=value`. Tokens are
-   * found with native indexOf rather than a per-character loop. Returns null when the
-   * line needs the general scan (mixed separators, quotes, `key = value`, errors), which
-   * then produces the result or the precise rejection.
+   * The hot path: one kind of separator, no quotes, every token `key=value`. A known key
+   * is recognised where its token starts (no search for `=`), other tokens and values are
+   * cut with native indexOf rather than a per-character loop. When every token was read
+   * by the strict scanners (known key, plain decimal, 0/1 flag, source name) the line is
+   * proven text and the control-byte search is skipped. Returns null when the line needs
+   * the general scan (mixed separators, quotes, `key = value`), which then produces the
+   * result or the precise rejection.
    */
   function parseKeyValueFast(s: string, rxS: number): LineResult | null {
     if (s.indexOf('"') !== -1) return null;
@@ -356,6 +421,16 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
     while (i < n) {
       if (s.charCodeAt(i) === sepCode) {
         i++;
+        continue;
+      }
+      const known = keyBeforeEquals(s, i);
+      if (known !== undefined) {
+        // A known key holds no separator, so the value runs from its `=` to the next one.
+        const eq = i + known.key.length;
+        let next = s.indexOf(sep, eq + 1);
+        if (next === -1) next = n;
+        if (!setFromRange(b, known.handler, null, s, i, eq, eq + 1, next)) return checkedResult(b);
+        i = next + 1;
         continue;
       }
       const eq = s.indexOf('=', i);
@@ -618,6 +693,16 @@ function parseFlag(raw: string): boolean | null {
   const lower = raw.toLowerCase();
   if (lower === 'true') return true;
   if (lower === 'false') return false;
+  return null;
+}
+
+/** A source name written exactly in lower case in text[from, to), read in place; else null. */
+function sourceInPlace(text: string, from: number, to: number): SourceKind | null {
+  const length = to - from;
+  const first = text.charCodeAt(from);
+  if (length === 7 && first === 97 && restMatches('adapter', text, from)) return 'adapter';
+  if (length === 5 && first === 112 && restMatches('panel', text, from)) return 'panel';
+  if (length === 4 && first === 110 && restMatches('none', text, from)) return 'none';
   return null;
 }
 

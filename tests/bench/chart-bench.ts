@@ -34,9 +34,13 @@ async function main(): Promise<void> {
     }, ZOOMS);
     const sorted = [...times].sort((a, b) => a - b);
     const median = percentile(sorted, 50);
-    console.log(`chart-bench: ${SAMPLES} samples (1 Hz, ${(SAMPLES / 86400).toFixed(1)} days), 4 charts, 5 datasets`);
+    console.log(
+      `chart-bench: ${SAMPLES} samples (1 Hz, ${(SAMPLES / 86400).toFixed(1)} days), 4 charts, 5 datasets`,
+    );
     console.log(`  load + first draw: ${loadMs.toFixed(0)} ms; whole-run redraw: ${allMs.toFixed(1)} ms`);
-    console.log(`  ${ZOOMS} zoom redraws: median ${median.toFixed(1)} ms, p95 ${percentile(sorted, 95).toFixed(1)} ms, max ${sorted[sorted.length - 1].toFixed(1)} ms (target median < 30 ms)`);
+    console.log(
+      `  ${ZOOMS} zoom redraws: median ${median.toFixed(1)} ms, p95 ${percentile(sorted, 95).toFixed(1)} ms, max ${sorted[sorted.length - 1].toFixed(1)} ms (target median < 30 ms)`,
+    );
     if (browser.errors.length) console.log(`  page errors: ${browser.errors.slice(0, 3).join(' | ')}`);
   } finally {
     await browser.close();

@@ -4,8 +4,8 @@
  */
 import { performance } from 'node:perf_hooks';
 import process from 'node:process';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import { createRunEngine } from '../../shared/engine/run-engine';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import { createRunEngine } from '@shared/engine/run-engine';
 import { ccCvCharge } from '../unit/engine-synthetic';
 
 // Invented demo pack: a 3S trail-camera Li-ion pack, 2.5 Ah, charged at 1 A.

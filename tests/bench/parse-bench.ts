@@ -9,9 +9,9 @@
  * the core). The lines are invented demo telemetry (a garden-sensor charger), varied so
  * that no two in a row are identical.
  */
-import { LineFramer } from '../../shared/telemetry/framer';
-import { createLineParser } from '../../shared/telemetry/parse-line';
-import { csvHeaderLine, formatTelemetryLine } from '../../shared/telemetry/format-line';
+import { LineFramer } from '@shared/telemetry/framer';
+import { createLineParser } from '@shared/telemetry/parse-line';
+import { csvHeaderLine, formatTelemetryLine } from '@shared/telemetry/format-line';
 
 const N = 400_000;
 

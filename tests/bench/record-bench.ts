@@ -10,9 +10,9 @@
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { createPipeline } from '../../shared/engine/pipeline';
-import type { TimedSample } from '../../shared/engine/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createPipeline } from '@shared/engine/pipeline';
+import type { TimedSample } from '@shared/engine/types';
 import { openRecorder } from '../../main/recorder';
 import type { Recorder, RunStart, SeriesField } from '../../main/recorder/types';
 import { getScenario, simulatedLines } from '../../main/simulator';
@@ -81,6 +81,13 @@ function fileBytes(path: string): number {
   return total;
 }
 
+/** A figure only counts when every row reached the file. */
+function mustBeHealthy(rec: Recorder): void {
+  const h = rec.health();
+  if (!h.ok || h.pending > 0 || h.dropped > 0)
+    throw new Error(`the recorder did not write everything: ${JSON.stringify(h)}`);
+}
+
 const mib = (b: number) => `${(b / 1024 / 1024).toFixed(1)} MiB`;
 
 function throughput(): void {
@@ -98,6 +105,7 @@ function throughput(): void {
   const samples = recordLines(rec, runId, lines, 1);
   rec.flush();
   const fullMs = performance.now() - t0;
+  mustBeHealthy(rec);
   rec.close();
 
   // The recorder alone: samples already parsed, one raw line each.
@@ -116,6 +124,7 @@ function throughput(): void {
   }
   rec2.flush();
   const recorderMs = performance.now() - t0;
+  mustBeHealthy(rec2);
   rec2.close();
 
   console.log(
@@ -145,6 +154,7 @@ function sizePerDay(): void {
     const empty = fileBytes(path);
     const { runId } = rec.startRun(START);
     recordLines(rec, runId, lines, 1 / hz);
+    mustBeHealthy(rec);
     rec.close();
     const hourBytes = fileBytes(path) - empty;
     console.log(
@@ -180,6 +190,7 @@ function overviewTiming(): void {
     rec.addSample(runId, s);
   }
   rec.endRun(runId, START.startRxS + n, 'stopped');
+  mustBeHealthy(rec);
   const buildS = (performance.now() - t0) / 1000;
   const fields: SeriesField[] = ['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA'];
   const time = (from: number, to: number, buckets: number) => {

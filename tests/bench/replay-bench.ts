@@ -7,12 +7,21 @@
  * Usage: node --import tsx tests/bench/replay-bench.ts [--quick]   (--quick skips (c))
  */
 import { spawn } from 'node:child_process';
-import { createReadStream, createWriteStream, existsSync, mkdirSync, openSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import {
+  createReadStream,
+  createWriteStream,
+  existsSync,
+  mkdirSync,
+  openSync,
+  readFileSync,
+  statSync,
+  writeFileSync,
+} from 'node:fs';
 import { join } from 'node:path';
 import { createInterface } from 'node:readline';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { createPipeline } from '../../shared/engine/pipeline';
-import { LineFramer } from '../../shared/telemetry/framer';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createPipeline } from '@shared/engine/pipeline';
+import { LineFramer } from '@shared/telemetry/framer';
 import { streamTelemetryLines } from '../../main/cli/read-lines';
 import { getScenario, simulatedLines } from '../../main/simulator';
 
@@ -33,13 +42,15 @@ async function writeLog(path: string, lineCount: number): Promise<void> {
       buffer += line + '\n';
       if (++written === lineCount) break;
       if (buffer.length > 1 << 20) {
-        if (!out.write(buffer)) await new Promise((resolve) => out.once('drain', resolve));
+        if (!out.write(buffer)) await new Promise<void>((resolve) => out.once('drain', () => resolve()));
         buffer = '';
       }
     }
   }
   out.write(buffer);
-  await new Promise<void>((resolve, reject) => out.end((err?: Error | null) => (err ? reject(err) : resolve())));
+  await new Promise<void>((resolve, reject) =>
+    out.end((err?: Error | null) => (err ? reject(err) : resolve())),
+  );
   writeFileSync(path + '.count', String(lineCount));
 }
 
@@ -63,7 +74,10 @@ async function framerOnly(path: string): Promise<number> {
 
 async function readlineOnly(path: string): Promise<number> {
   let lines = 0;
-  const rl = createInterface({ input: createReadStream(path, { highWaterMark: 1 << 20 }), crlfDelay: Infinity });
+  const rl = createInterface({
+    input: createReadStream(path, { highWaterMark: 1 << 20 }),
+    crlfDelay: Infinity,
+  });
   for await (const _line of rl) lines++;
   return lines;
 }
@@ -98,11 +112,18 @@ async function measure(label: string, runs: number, fn: () => Promise<number>): 
 }
 
 /** Peak RSS of a child replaying `path`, read from /proc while it runs (VmHWM is the high-water mark). */
-async function peakRssOfReplay(path: string, profilePath: string): Promise<{ peakMb: number; seconds: number; code: number | null }> {
+async function peakRssOfReplay(
+  path: string,
+  profilePath: string,
+): Promise<{ peakMb: number; seconds: number; code: number | null }> {
   const started = performance.now();
-  const child = spawn(process.execPath, [join(root, 'bin', 'taperline.cjs'), 'replay', path, '--profile', profilePath, '--events'], {
-    stdio: ['ignore', openSync('/dev/null', 'w'), 'inherit'],
-  });
+  const child = spawn(
+    process.execPath,
+    [join(root, 'bin', 'taperline.cjs'), 'replay', path, '--profile', profilePath, '--events'],
+    {
+      stdio: ['ignore', openSync('/dev/null', 'w'), 'inherit'],
+    },
+  );
   let peakKb = 0;
   const poll = setInterval(() => {
     try {
@@ -132,8 +153,12 @@ async function main(): Promise<void> {
 
   await fullPipeline(log1m, profileJson); // warm-up of the JIT for every step
   const framer = await measure('(a) bare splitting: LineFramer', 5, () => framerOnly(log1m));
-  const readline = await measure('(a\') bare splitting: node:readline (reference)', 3, () => readlineOnly(log1m));
-  const pipeline = await measure('(b) full pipeline: frame+parse+engine+events', 5, () => fullPipeline(log1m, profileJson));
+  const readline = await measure("(a') bare splitting: node:readline (reference)", 3, () =>
+    readlineOnly(log1m),
+  );
+  const pipeline = await measure('(b) full pipeline: frame+parse+engine+events', 5, () =>
+    fullPipeline(log1m, profileJson),
+  );
   console.log(`  ratio pipeline / LineFramer splitting: ${(pipeline / framer).toFixed(2)} (target >= 0.4)`);
   console.log(`  ratio pipeline / node:readline splitting: ${(pipeline / readline).toFixed(2)}`);
   console.log(`  pipeline target >= 1.00 M lines/s: ${pipeline >= 1e6 ? 'met' : 'NOT met'}`);

@@ -7,7 +7,16 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawn } from 'node:child_process';
-import { existsSync, mkdtempSync, openSync, rmSync, writeFileSync, writeSync, closeSync, createReadStream } from 'node:fs';
+import {
+  existsSync,
+  mkdtempSync,
+  openSync,
+  rmSync,
+  writeFileSync,
+  writeSync,
+  closeSync,
+  createReadStream,
+} from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openBrowser, screenshot, type BrowserSession } from './helpers/browser';
@@ -26,7 +35,9 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
   const dir = mkdtempSync(join(tmpdir(), 'taperline-feed-'));
   const devicePath = join(dir, 'charger');
   const testPath = join(dir, 'bench-side');
-  const socat = spawn('socat', [`pty,raw,echo=0,link=${devicePath}`, `pty,raw,echo=0,link=${testPath}`], { stdio: 'ignore' });
+  const socat = spawn('socat', [`pty,raw,echo=0,link=${devicePath}`, `pty,raw,echo=0,link=${testPath}`], {
+    stdio: 'ignore',
+  });
   let serve: ServeHandle | null = null;
   let browser: BrowserSession | null = null;
   let fd: number | null = null;
@@ -34,23 +45,42 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
   t.after(async () => {
     await browser?.close();
     await serve?.stop();
-    // The read stream owns the pty descriptor and closes it.
-    if (reader) await new Promise<void>((resolve) => reader!.destroy().once('close', () => resolve()));
-    else if (fd !== null) closeSync(fd);
+    // Stop socat first: its exit ends the read pending on the pty, then the stream can close.
+    const socatGone = new Promise<void>((resolve) =>
+      socat.exitCode !== null ? resolve() : socat.once('exit', () => resolve()),
+    );
     socat.kill('SIGTERM');
+    await socatGone;
+    if (reader) {
+      if (!reader.closed)
+        await new Promise<void>((resolve) => reader!.once('close', () => resolve()).destroy());
+    } else if (fd !== null) closeSync(fd);
     rmSync(dir, { recursive: true, force: true });
   });
   await waitFor(() => existsSync(devicePath) && existsSync(testPath), 10_000, 'the socat pty pair');
 
   // An invented 3S garden-sensor pack (demo profile).
   const profilePath = join(dir, 'profile.json');
-  writeFileSync(profilePath, JSON.stringify({ name: 'feed test 3S pack (demo)', chemistry: 'li-ion', cells: 3, capacityAh: 2.5, chargeCurrentA: 1 }));
+  writeFileSync(
+    profilePath,
+    JSON.stringify({
+      name: 'feed test 3S pack (demo)',
+      chemistry: 'li-ion',
+      cells: 3,
+      capacityAh: 2.5,
+      chargeCurrentA: 1,
+    }),
+  );
   serve = await startServe(['--station-port', devicePath, '--baud', '115200', '--profile', profilePath]);
 
   fd = openSync(testPath, 'r+');
   let received = '';
   reader = createReadStream('', { fd, autoClose: true });
   reader.on('data', (d) => (received += String(d)));
+  // The pty reports EIO once socat has gone at the end of the test; nothing is lost by then.
+  reader.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code !== 'EIO') throw err;
+  });
   const write = (line: string) => writeSync(fd!, `${line}\n`);
 
   browser = await openBrowser();
@@ -60,7 +90,8 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
 
   // PROTOCOL section 1: key=value samples, a `#` firmware message, and a value that is not a number.
   write('# feed-test firmware 0.1 (demo)');
-  for (let i = 0; i < 5; i++) write(`t=${i} vbat=${(11.1 + i * 0.01).toFixed(3)} ibat=0.98 temp=25.${i} vin=15.0 iin=0.8`);
+  for (let i = 0; i < 5; i++)
+    write(`t=${i} vbat=${(11.1 + i * 0.01).toFixed(3)} ibat=0.98 temp=25.${i} vin=15.0 iin=0.8`);
   write('t=5 vbat=eleven ibat=0.98');
   write('t=6 vbat=11.160 ibat=0.97 temp=25.6');
 
@@ -73,7 +104,7 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
     assert.equal(await rejected.locator('.feed-marker').textContent(), 'REJECTED');
     const firmware = page.locator('#view-feed .feed-row.kind-firmware').first();
     assert.equal(await firmware.locator('.feed-marker').textContent(), '# FW');
-    assert.equal(await page.locator('#view-feed .feed-row.kind-sample').count() >= 6, true);
+    assert.equal((await page.locator('#view-feed .feed-row.kind-sample').count()) >= 6, true);
   });
 
   await t.test('the filter and pause work', async () => {
@@ -83,10 +114,17 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
     await page.locator('#feed-pause').click();
     const shown = await page.locator('#view-feed .feed-row').count();
     write('t=7 vbat=11.170 ibat=0.97 temp=25.7');
-    await page.waitForFunction(() => /1 new line held/.test(document.querySelector('#view-feed .feed-counts')?.textContent ?? ''), undefined, { timeout: 10_000 });
+    await page.waitForFunction(
+      () => /1 new line held/.test(document.querySelector('#view-feed .feed-counts')?.textContent ?? ''),
+      undefined,
+      { timeout: 10_000 },
+    );
     assert.equal(await page.locator('#view-feed .feed-row').count(), shown);
     await page.locator('#feed-pause').click();
-    await page.waitForFunction((n) => document.querySelectorAll('#view-feed .feed-row').length === n + 1, shown);
+    await page.waitForFunction(
+      (n) => document.querySelectorAll('#view-feed .feed-row').length === n + 1,
+      shown,
+    );
   });
 
   await t.test('the send box writes the chosen line ending to the port', async () => {
@@ -98,6 +136,25 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
     await page.locator('#view-feed .feed-row.kind-sent').first().waitFor({ timeout: 10_000 });
     await page.waitForTimeout(300);
     await screenshot(page, 'feed');
+  });
+
+  await t.test('the feed stays bounded to the last 5,000 lines', async () => {
+    const burst = 5_300;
+    let text = '';
+    for (let i = 0; i < burst; i++) text += `t=${100 + i} vbat=11.200 ibat=0.95 temp=26.0\n`;
+    writeSync(fd!, text);
+    await page.waitForFunction(
+      (last) => document.querySelector('#view-feed .feed-row:last-child .feed-text')?.textContent === last,
+      `t=${100 + burst - 1} vbat=11.200 ibat=0.95 temp=26.0`,
+      { timeout: 60_000 },
+    );
+    const rows = await page.locator('#view-feed .feed-row').count();
+    // LINE_FEED_LIMIT (renderer/feed-ring.ts): the oldest lines leave the view, the newest stay.
+    assert.equal(rows, 5_000);
+    assert.equal(
+      await page.locator('#view-feed .feed-row:first-child .feed-text').textContent(),
+      `t=${100 + burst - 5_000} vbat=11.200 ibat=0.95 temp=26.0`,
+    );
   });
 
   await openViewByKey(page, 'bench');

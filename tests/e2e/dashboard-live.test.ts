@@ -8,7 +8,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { parse } from 'csv-parse/sync';
-import { parseProfile } from '../../shared/chemistry/profile';
+import { parseProfile } from '@shared/chemistry/profile';
 import { openBrowser, screenshot, type BrowserSession } from './helpers/browser';
 import { pageUrl, startServe, type ServeHandle } from './helpers/serve';
 import { firstStationId, openViewByKey } from './helpers/page';
@@ -35,12 +35,30 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     assert.equal(await word.textContent(), 'Constant current');
     assert.match((await page.locator('#view-bench .phase-since').textContent()) ?? '', /^for \d+:\d\d:\d\d$/);
     // Every chart carries its unit on its axis; the phase legend is in words.
-    const labels = await page.locator('#view-bench canvas[role="img"]').evaluateAll((els) => els.map((e) => e.getAttribute('aria-label') ?? ''));
-    for (const unit of ['Pack voltage [V]', 'Charge current [A]', 'Temperature [°C]', 'Source voltage [V]', 'Source power [W]']) {
-      assert.ok(labels.some((l) => l.includes(unit)), `a chart labelled ${unit}`);
+    const labels = await page
+      .locator('#view-bench canvas[role="img"]')
+      .evaluateAll((els) => els.map((e) => e.getAttribute('aria-label') ?? ''));
+    for (const unit of [
+      'Pack voltage [V]',
+      'Charge current [A]',
+      'Temperature [°C]',
+      'Source voltage [V]',
+      'Source power [W]',
+    ]) {
+      assert.ok(
+        labels.some((l) => l.includes(unit)),
+        `a chart labelled ${unit}`,
+      );
     }
     const legend = await page.locator('#view-bench .phase-legend li').allTextContents();
-    assert.deepEqual(legend, ['Precondition', 'Constant current', 'Constant voltage', 'Done', 'Fault', 'Idle']);
+    assert.deepEqual(legend, [
+      'Precondition',
+      'Constant current',
+      'Constant voltage',
+      'Done',
+      'Fault',
+      'Idle',
+    ]);
     // Let a few seconds of trend arrive before the picture.
     await page.waitForTimeout(3000);
     await screenshot(page, 'bench');
@@ -83,14 +101,20 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     await canvas.focus();
     const before = await page.locator('#view-bench .window-label').textContent();
     await page.keyboard.press('-');
-    await page.waitForFunction((b) => document.querySelector('#view-bench .window-label')?.textContent !== b, before);
+    await page.waitForFunction(
+      (b) => document.querySelector('#view-bench .window-label')?.textContent !== b,
+      before,
+    );
   });
 
   await t.test('a marked chart time can be diagnosed', async () => {
     const canvas = page.locator('#view-bench canvas[role="img"]').first();
     const box = (await canvas.boundingBox())!;
     await page.mouse.click(box.x + box.width * 0.5, box.y + box.height / 2);
-    const marked = ((await page.locator('#view-bench .pick-text').textContent()) ?? '').replace('Marked ', '');
+    const marked = ((await page.locator('#view-bench .pick-text').textContent()) ?? '').replace(
+      'Marked ',
+      '',
+    );
     assert.match(marked, /^\d+:\d\d$/);
     await page.locator('#diagnose-here').click();
     await page.locator('#view-diagnosis').waitFor({ state: 'visible' });
@@ -102,10 +126,29 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     const causes = page.locator('#view-diagnosis .cause');
     for (let i = 0; i < (await causes.count()); i++) {
       const code = await causes.nth(i).getAttribute('data-code');
-      assert.ok(['damaged-cell', 'weak-source', 'overtemperature', 'thermistor-fault', 'timer-expired', 'overvoltage', 'connection', 'unknown'].includes(code ?? ''), `cause ${code}`);
-      assert.match((await causes.nth(i).locator('.confidence-text').textContent()) ?? '', /^\d{1,3} % confidence$/);
+      assert.ok(
+        [
+          'damaged-cell',
+          'weak-source',
+          'overtemperature',
+          'thermistor-fault',
+          'timer-expired',
+          'overvoltage',
+          'connection',
+          'unknown',
+        ].includes(code ?? ''),
+        `cause ${code}`,
+      );
+      assert.match(
+        (await causes.nth(i).locator('.confidence-text').textContent()) ?? '',
+        /^\d{1,3} % confidence$/,
+      );
     }
-    if ((await causes.count()) === 0) assert.equal(await page.locator('#view-diagnosis .diag-causes').textContent(), 'No cause stands out at this time.');
+    if ((await causes.count()) === 0)
+      assert.equal(
+        await page.locator('#view-diagnosis .diag-causes').textContent(),
+        'No cause stands out at this time.',
+      );
   });
 
   await t.test('a bad profile value is refused with the message that names the key', async () => {
@@ -113,9 +156,20 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     const field = page.locator('#profile-chargeCurrentA');
     await field.fill('-2');
     const error = page.locator('#profile-chargeCurrentA-err');
-    await page.waitForFunction(() => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? '') !== '');
+    await page.waitForFunction(
+      () => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? '') !== '',
+    );
     // The message is the backend's own refusal, word for word (shared/chemistry/profile).
-    const expected = parseProfile({ name: 'garden-sensor 3S Li-ion', chemistry: 'li-ion', cells: 3, capacityAh: 2.5, chargeCurrentA: -2, terminationA: 0.1, timerMin: 240, tempWindowC: [0, 45] });
+    const expected = parseProfile({
+      name: 'garden-sensor 3S Li-ion',
+      chemistry: 'li-ion',
+      cells: 3,
+      capacityAh: 2.5,
+      chargeCurrentA: -2,
+      terminationA: 0.1,
+      timerMin: 240,
+      tempWindowC: [0, 45],
+    });
     assert.equal(expected.ok, false);
     if (expected.ok) return;
     assert.equal(expected.key, 'chargeCurrentA');
@@ -123,12 +177,26 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     assert.equal(await field.getAttribute('aria-invalid'), 'true');
     assert.match((await page.locator('#profile-error').textContent()) ?? '', /chargeCurrentA/);
     await page.locator('#add-station').click();
-    await page.waitForFunction(() => /Not added/.test(document.querySelector('#view-connect .connect-status')?.textContent ?? ''));
+    await page.waitForFunction(() =>
+      /Not added/.test(document.querySelector('#view-connect .connect-status')?.textContent ?? ''),
+    );
     // The safety caution is shown where the limits are set.
-    assert.match((await page.locator('#view-connect .limits .caution').textContent()) ?? '', /fires.*datasheet.*codes/s);
-    await screenshot(page, 'connect');
+    assert.match(
+      (await page.locator('#view-connect .limits .caution').textContent()) ?? '',
+      /fires.*datasheet.*codes/s,
+    );
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await screenshot(page, 'connect-refused');
     await field.fill('1.0');
-    await page.waitForFunction(() => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? 'x') === '');
+    await page.waitForFunction(
+      () => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? 'x') === '',
+    );
+    // With a valid profile the live preview reads the demo lines, the bad one rejected with its reason.
+    const rejectedPreview = page.locator('#view-connect .preview-table tr.preview-rejected');
+    await rejectedPreview.first().waitFor({ timeout: 10_000 });
+    assert.match((await rejectedPreview.first().textContent()) ?? '', /bad-value/);
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await screenshot(page, 'connect');
   });
 
   await t.test('the Runs view lists the run and its CSV download parses', async () => {
@@ -143,14 +211,78 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     await link.waitFor();
     const [download] = await Promise.all([page.waitForEvent('download'), link.click()]);
     const path = await download.path();
-    const rows = parse(readFileSync(path), { columns: true, skip_empty_lines: true, bom: true }) as Record<string, string>[];
+    const rows = parse(readFileSync(path), { columns: true, skip_empty_lines: true, bom: true }) as Record<
+      string,
+      string
+    >[];
     assert.ok(rows.length > 10, `CSV rows: ${rows.length}`);
     assert.ok('vbat (V)' in rows[0] && 't (s)' in rows[0], `CSV columns: ${Object.keys(rows[0]).join(', ')}`);
     // A 3S Li-ion pack between precondition and full charge: 3 x 2.5..4.3 V/cell
     // (REFERENCES section 1: regulation 4.20 V/cell, precondition below about 3.0 V/cell).
     const vbat = rows.map((r) => Number(r['vbat (V)'])).filter(Number.isFinite);
-    assert.ok(vbat.length > 10 && vbat.every((v) => v > 7.5 && v < 12.9), `vbat in range (${Math.min(...vbat)}..${Math.max(...vbat)})`);
+    assert.ok(
+      vbat.length > 10 && vbat.every((v) => v > 7.5 && v < 12.9),
+      `vbat in range (${Math.min(...vbat)}..${Math.max(...vbat)})`,
+    );
     await screenshot(page, 'runs');
+  });
+
+  await t.test('the Run report is offered as a download of a self-contained page', async () => {
+    const row = page.locator('#view-runs tr[data-run]').first();
+    await row.locator('button', { hasText: 'Report' }).click();
+    const link = page.locator('#report-link');
+    await link.waitFor({ timeout: 30_000 });
+    const href = new URL((await link.getAttribute('href'))!, serve.url).toString();
+    const response = await page.request.get(href, { timeout: 60_000 });
+    assert.equal(response.status(), 200);
+    assert.match(response.headers()['content-type'] ?? '', /text\/html/);
+    assert.match(await response.text(), /<html/i);
+  });
+
+  await t.test('a run still recording is not deleted, and says why', async () => {
+    const row = page.locator('#view-runs tr[data-run]').first();
+    const runId = await row.getAttribute('data-run');
+    await row.locator('button', { hasText: 'Delete…' }).click();
+    await row.locator('button', { hasText: 'Yes, delete' }).click();
+    await page.waitForFunction(
+      (id) =>
+        /was not deleted/.test(document.querySelector('#view-runs .runs-status')?.textContent ?? '') &&
+        document.querySelector(`#view-runs tr[data-run="${id}"]`) !== null,
+      runId,
+    );
+    assert.match((await page.locator('#view-runs .runs-status').textContent()) ?? '', /still recording/);
+  });
+
+  await t.test('a recorded run opens in the Bench view from its overview', async () => {
+    const row = page.locator('#view-runs tr[data-run]').first();
+    const runId = await row.getAttribute('data-run');
+    await row.locator('button', { hasText: 'Open' }).click();
+    await page.locator('#view-bench .run-title').waitFor({ timeout: 15_000 });
+    assert.match(
+      (await page.locator('#view-bench .run-title').textContent()) ?? '',
+      new RegExp(`^Run ${runId} `),
+    );
+    // Zoom in with the buttons: the window narrows and finer data is fetched for it.
+    const label = page.locator('#view-bench .window-label');
+    const before = await label.textContent();
+    await page.locator('#view-bench button[aria-label="Zoom in"]').click();
+    await page.waitForFunction(
+      (b) => document.querySelector('#view-bench .window-label')?.textContent !== b,
+      before,
+    );
+    await page.waitForTimeout(800);
+    await screenshot(page, 'bench-run');
+  });
+
+  await t.test('a recorded run replays as a new station', async () => {
+    await openViewByKey(page, 'runs');
+    await page.locator('#replay-speed').selectOption({ label: 'As fast as possible' });
+    const row = page.locator('#view-runs tr[data-run]').first();
+    await row.locator('button', { hasText: 'Replay' }).click();
+    await page.locator('#view-bench').waitFor({ state: 'visible', timeout: 15_000 });
+    const selected = await page.locator('#bench-station').inputValue();
+    assert.notEqual(selected, stationId, 'the Bench view shows the replay station');
+    await page.locator('#view-bench .phase-word').waitFor({ timeout: 15_000 });
   });
 
   assert.deepEqual(

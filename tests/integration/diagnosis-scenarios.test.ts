@@ -9,8 +9,8 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { diagnose, type Diagnosis } from '../../shared/engine/diagnosis';
+import { parseProfile } from '@shared/chemistry/profile';
+import { diagnose, type Diagnosis } from '@shared/engine/diagnosis';
 import { getScenario, simulatedLines } from '../../main/simulator';
 import { RunCollector } from '../../main/report/collect-run';
 

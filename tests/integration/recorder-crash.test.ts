@@ -16,27 +16,16 @@ import { ptyPair, until } from './serial-pty';
 
 const repo = resolve(__dirname, '..', '..');
 
-/** A tiny entry that runs the real `record` command (its commander wiring included). */
-function writeChildScript(dir: string): string {
-  const file = join(dir, 'record-child.ts');
-  writeFileSync(
-    file,
-    [
-      `import { Command } from ${JSON.stringify(require.resolve('commander'))};`,
-      `import { registerRecord } from ${JSON.stringify(join(repo, 'main', 'cli', 'record'))};`,
-      `const program = new Command('taperline').exitOverride();`,
-      `registerRecord(program);`,
-      `program.parseAsync(process.argv.slice(2), { from: 'user' }).then(() => process.exit(0), (e) => { console.error(String(e)); process.exit(2); });`,
-    ].join('\n'),
+/** The real CLI entry, as `taperline record` runs it. */
+function startRecorder(args: string[]): { child: ChildProcess; out: () => string } {
+  const child = spawn(
+    process.execPath,
+    ['--import', 'tsx', join(repo, 'main', 'cli', 'main.ts'), 'record', ...args],
+    {
+      cwd: repo,
+      stdio: ['ignore', 'pipe', 'pipe'],
+    },
   );
-  return file;
-}
-
-function startRecorder(script: string, args: string[]): { child: ChildProcess; out: () => string } {
-  const child = spawn(process.execPath, ['--import', 'tsx', script, 'record', ...args], {
-    cwd: repo,
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
   let text = '';
   child.stdout?.on('data', (d: Buffer) => (text += d.toString()));
   child.stderr?.on('data', (d: Buffer) => (text += d.toString()));
@@ -77,11 +66,10 @@ test('kill -9 mid-run: integrity ok, every line received a batch before the kill
       chargeCurrentA: 20,
     }),
   );
-  const script = writeChildScript(dir);
   let child: ChildProcess | null = null;
   try {
     await pair.start();
-    const run1 = startRecorder(script, [
+    const run1 = startRecorder([
       '--port',
       pair.host,
       '--db',
@@ -99,7 +87,7 @@ test('kill -9 mid-run: integrity ok, every line received a batch before the kill
     );
     const device = await openDevice(pair.device);
     const sentAtMs: number[] = [];
-    for (let i = 0; i < 60; i++) {
+    for (let i = 0; i < 100; i++) {
       await write(device, `${line(i)}\n`);
       sentAtMs.push(Date.now());
       await new Promise((r) => setTimeout(r, 25));
@@ -116,10 +104,10 @@ test('kill -9 mid-run: integrity ok, every line received a batch before the kill
       (raw.prepare('SELECT text FROM lines').all() as Array<{ text: string }>).map((r) => r.text),
     );
     raw.close();
-    // A batch is committed at most 250 ms after a line arrives; one more batch interval of margin
-    // covers the pty transit and a busy machine.
-    const due = sentAtMs.map((ms, i) => [ms, i] as const).filter(([ms]) => ms < killMs - 500);
-    assert.ok(due.length >= 30, `${due.length} lines were due`);
+    // A batch is committed at most 250 ms after a line arrives (the flush interval); 750 ms more
+    // covers the pty transit and timers running late on a busy shared machine.
+    const due = sentAtMs.map((ms, i) => [ms, i] as const).filter(([ms]) => ms < killMs - 1000);
+    assert.ok(due.length >= 40, `${due.length} lines were due`);
     for (const [, i] of due)
       assert.ok(stored.has(line(i)), `line ${i} was received well before the kill and must be recorded`);
 
@@ -155,12 +143,11 @@ test('a recorder restarted soon after a crash continues the same run with one ga
       chargeCurrentA: 20,
     }),
   );
-  const script = writeChildScript(dir);
   const children: ChildProcess[] = [];
   try {
     await pair.start();
     const args = ['--port', pair.host, '--db', dbPath, '--profile', profilePath, '--resume-within', '600'];
-    const first = startRecorder(script, args);
+    const first = startRecorder(args);
     children.push(first.child);
     await until(() => /open at 115200 baud/.test(first.out()), 30_000, 'first recorder open');
     let device = await openDevice(pair.device);
@@ -170,7 +157,7 @@ test('a recorder restarted soon after a crash continues the same run with one ga
     await killed(first.child);
     await new Promise<void>((r) => device.close(() => r()));
 
-    const second = startRecorder(script, args);
+    const second = startRecorder(args);
     children.push(second.child);
     await until(() => /open at 115200 baud/.test(second.out()), 30_000, 'second recorder open');
     device = await openDevice(pair.device);

@@ -8,9 +8,9 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { createPipeline } from '../../shared/engine/pipeline';
-import type { Diagnosis } from '../../shared/engine/diagnosis';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createPipeline } from '@shared/engine/pipeline';
+import type { Diagnosis } from '@shared/engine/diagnosis';
 import { getScenario, simulatedLines } from '../../main/simulator';
 import { openRecorder } from '../../main/recorder';
 

@@ -7,10 +7,10 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { getScenario, SCENARIO_NAMES, createTelemetryRun } from '../../main/simulator';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { createPipeline } from '../../shared/engine/pipeline';
-import type { AlarmEvent, EngineEvent, Phase, RunState, TimedSample } from '../../shared/engine/types';
-import type { LineShape } from '../../shared/telemetry/format-line';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createPipeline } from '@shared/engine/pipeline';
+import type { AlarmEvent, EngineEvent, Phase, RunState, TimedSample } from '@shared/engine/types';
+import type { LineShape } from '@shared/telemetry/format-line';
 
 /** Receive clock of the synthetic run: device time on top of a fixed epoch. */
 const EPOCH_S = 1_780_000_000;

@@ -7,8 +7,8 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { ReadlineParser } from '@serialport/parser-readline';
 import fc from 'fast-check';
-import { LineFramer } from '../../shared/telemetry/framer';
-import { MAX_LINE_BYTES } from '../../shared/telemetry/types';
+import { LineFramer } from '@shared/telemetry/framer';
+import { MAX_LINE_BYTES } from '@shared/telemetry/types';
 import { ByteRunGuard } from '../../main/serial';
 
 type Line = [string, boolean];

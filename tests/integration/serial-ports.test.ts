@@ -8,7 +8,7 @@ import { spawn } from 'node:child_process';
 import { mkdirSync, mkdtempSync, realpathSync, rmSync, symlinkSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { SerialPort } from 'serialport';
+import { SerialPort, SerialPortMock } from 'serialport';
 import { byIdLinks, describeListError, listPorts, PortListError } from '../../main/serial';
 import { ptyPair } from './serial-pty';
 
@@ -94,5 +94,25 @@ test('by-id names resolve through their symlinks to the device (a real pty here)
   } finally {
     await pair.stop();
     rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('port entries carry maker, serial number and USB id as the binding reports them (binding-mock)', async () => {
+  const mock = SerialPortMock.binding;
+  mock.reset();
+  // Invented identities for two demo bridges.
+  mock.createPort('/dev/ttyMOCK2', { manufacturer: 'Demo Bridges', vendorId: '1d6b', productId: '0104' });
+  mock.createPort('/dev/ttyMOCK1', {});
+  try {
+    const ports = await listPorts(() => mock.list());
+    assert.deepEqual(
+      ports.map((p) => [p.path, p.manufacturer, p.vendorId, p.productId, typeof p.serialNumber]),
+      [
+        ['/dev/ttyMOCK1', 'The J5 Robotics Company', null, null, 'string'],
+        ['/dev/ttyMOCK2', 'Demo Bridges', '1d6b', '0104', 'string'],
+      ],
+    );
+  } finally {
+    mock.reset();
   }
 });

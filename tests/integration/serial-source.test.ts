@@ -272,3 +272,37 @@ test('a device that comes back under another path is found again by its /dev/ser
     rmSync(dir, { recursive: true, force: true });
   }
 });
+
+test('the data watchdog notices a device that vanished without a close event (binding-mock)', async () => {
+  MockBinding.reset();
+  MockBinding.createPort('/dev/ttyMOCK5', {});
+  let present = true;
+  const source = createSerialSource(
+    { kind: 'serial', path: '/dev/ttyMOCK5', baudRate: 9600 },
+    {
+      watchdogS: 0.2,
+      retryMinMs: 20,
+      retryMaxMs: 50,
+      openPort: (o) => new SerialPortMock({ path: o.path, baudRate: o.baudRate, autoOpen: false }),
+      list: async () => [],
+      exists: () => present,
+    },
+  );
+  const got = collect(source);
+  try {
+    source.start();
+    await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
+    // Silence alone is not an unplug: the device is still there.
+    await new Promise((r) => setTimeout(r, 500));
+    assert.ok(!got.statuses.some((s) => s.state === 'lost'));
+    present = false;
+    await until(() => got.statuses.some((s) => s.state === 'lost'), 5000, 'lost');
+    assert.match(
+      (got.statuses.find((s) => s.state === 'lost') as SourceStatus).detail,
+      /vanished \(no data for 0.2 s\)/,
+    );
+  } finally {
+    await source.stop();
+    MockBinding.reset();
+  }
+});

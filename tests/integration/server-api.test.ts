@@ -5,8 +5,8 @@
 import { after, before, test } from 'node:test';
 import assert from 'node:assert/strict';
 import WebSocket from 'ws';
-import { MAX_PUSHES_PER_SECOND } from '../../shared/ipc/channels';
-import type { SampleBatch } from '../../shared/ipc/pushes';
+import { MAX_PUSHES_PER_SECOND } from '@shared/ipc/channels';
+import type { SampleBatch } from '@shared/ipc/pushes';
 import {
   ApiClient,
   openPtyPair,

@@ -17,9 +17,9 @@ import {
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import WebSocket from 'ws';
-import { WS_PATH } from '../../shared/ipc/channels';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
-import type { ReplyEnvelope } from '../../shared/ipc/requests';
+import { WS_PATH } from '@shared/ipc/channels';
+import type { PushEnvelope } from '@shared/ipc/pushes';
+import type { ReplyEnvelope } from '@shared/ipc/requests';
 import { createAppService, type AppService } from '../../main/app/service';
 import { openRecorder } from '../../main/recorder';
 import type { Recorder } from '../../main/recorder/types';

@@ -8,7 +8,7 @@ import assert from 'node:assert/strict';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { SampleBatch } from '../../shared/ipc/pushes';
+import type { SampleBatch } from '@shared/ipc/pushes';
 import { startBackend, type Backend } from '../../main/app/backend';
 import { startServer, type RunningServer } from '../../main/server';
 import { realLibraries } from '../../main/app/libraries';

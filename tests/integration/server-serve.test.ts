@@ -10,7 +10,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openRunReader } from '../../main/recorder';
-import type { SampleBatch } from '../../shared/ipc/pushes';
+import type { SampleBatch } from '@shared/ipc/pushes';
 import { ApiClient, rawGet } from './server-harness';
 
 const root = join(__dirname, '..', '..');

@@ -121,6 +121,45 @@ test('on a terminal: the status line is redrawn in place, and Ctrl-C closes the 
   }
 });
 
+test('a database that cannot be opened is said in one sentence, and the live status goes on without recording', async () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-reccli-'));
+  const pair = ptyPair(join(dir, 'dev'), join(dir, 'host'));
+  const blocker = join(dir, 'not-a-folder');
+  writeFileSync(blocker, 'a file where the database folder should be');
+  let child: ChildProcess | null = null;
+  try {
+    await pair.start();
+    const rec = run([
+      'record',
+      '--port',
+      pair.host,
+      '--db',
+      join(blocker, 'runs.sqlite'),
+      '--status-every',
+      '1',
+    ]);
+    child = rec.child;
+    await until(() => /open at 115200 baud/.test(rec.out()), 30_000, 'port open');
+    assert.match(
+      rec.out(),
+      /^taperline: .*nothing was recorded — fix that or give another --db FILE\. The live display continues without recording\.$/m,
+    );
+    await writeLines(pair.device, LINES);
+    await until(
+      () => /\| cc \| 7\.401 V .*\| NOT RECORDING \|/.test(rec.out()),
+      10_000,
+      `a status line: ${rec.out()}`,
+    );
+    child.kill('SIGTERM');
+    assert.equal(await exited(child), 0, rec.out());
+    assert.match(rec.out(), /: not recorded, 2 lines/);
+  } finally {
+    child?.kill('SIGKILL');
+    await pair.stop();
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
 test('usage errors are one line on standard error with exit status 2', async () => {
   const dir = mkdtempSync(join(tmpdir(), 'taperline-reccli-'));
   try {

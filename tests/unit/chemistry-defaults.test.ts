@@ -1,8 +1,8 @@
 /** Chemistry defaults against their published values (the source named beside each check). */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { CHEMISTRY_DEFAULTS, DEFAULT_SILENCE_S } from '../../shared/chemistry/defaults';
-import { compensatedVPerCell, profileFromChemistry } from '../../shared/chemistry/profile';
+import { CHEMISTRY_DEFAULTS, DEFAULT_SILENCE_S } from '@shared/chemistry/defaults';
+import { compensatedVPerCell, profileFromChemistry } from '@shared/chemistry/profile';
 
 test('regulation voltages per cell match the published values', () => {
   // Battery University BU-409 "Charging Lithium-ion": 4.20 V/cell.

@@ -6,8 +6,8 @@ import {
   profileFromChemistry,
   profileSchema,
   PROFILE_CAUTION,
-} from '../../shared/chemistry/profile';
-import { CHEMISTRIES } from '../../shared/chemistry/types';
+} from '@shared/chemistry/profile';
+import { CHEMISTRIES } from '@shared/chemistry/types';
 
 // The example profile of PROTOCOL section 2 (an invented garden-sensor pack).
 const example = {

@@ -4,10 +4,10 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import type { ResolvedProfile } from '../../shared/chemistry/types';
-import { CAUSE_CODES, diagnose, type Diagnosis } from '../../shared/engine/diagnosis';
-import type { AlarmCode, EngineEvent, Phase, TimedSample } from '../../shared/engine/types';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import type { ResolvedProfile } from '@shared/chemistry/types';
+import { CAUSE_CODES, diagnose, type Diagnosis } from '@shared/engine/diagnosis';
+import type { AlarmCode, EngineEvent, Phase, TimedSample } from '@shared/engine/types';
 
 // Invented demo pack: a trail camera's 3S 2.5 Ah Li-ion pack on a bench adapter.
 const liion3s = (overrides: Parameters<typeof profileFromChemistry>[2] = {}): ResolvedProfile =>

@@ -1,18 +1,18 @@
 /** The diagnosed moment and the history the cause modules read (invented sample data). */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
+import { profileFromChemistry } from '@shared/chemistry/profile';
 import {
   buildContext,
   findFirstFault,
   phaseSpans,
   typicalInterval,
   upperBound,
-} from '../../shared/engine/diagnosis/context';
-import { fmtDuration, fmtT } from '../../shared/engine/diagnosis/format';
-import { deliveredAh, resistanceSteps } from '../../shared/engine/diagnosis/measures';
-import { isImpossibleJump } from '../../shared/engine/diagnosis/temperature';
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
+} from '@shared/engine/diagnosis/context';
+import { fmtDuration, fmtT } from '@shared/engine/diagnosis/format';
+import { deliveredAh, resistanceSteps } from '@shared/engine/diagnosis/measures';
+import { isImpossibleJump } from '@shared/engine/diagnosis/temperature';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
 
 const at = (t: number, extra: Partial<TimedSample> = {}): TimedSample => ({ t, rxS: t, extra: {}, ...extra });
 

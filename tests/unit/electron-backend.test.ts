@@ -8,7 +8,7 @@ import assert from 'node:assert/strict';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { PushEnvelope } from '../../shared/ipc/pushes';
+import type { PushEnvelope } from '@shared/ipc/pushes';
 import { nodeExecutable, startBackendProcess } from '../../main/electron/backend-process';
 import { openRunReader } from '../../main/recorder';
 

@@ -5,12 +5,12 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import type { ReplyEnvelope, RequestEnvelope } from '../../shared/ipc/requests';
+import type { ReplyEnvelope, RequestEnvelope } from '@shared/ipc/requests';
 import { handleRendererRequest } from '../../main/electron/ipc-relay';
 import { APP_START_URL, checkIpcSender, isAppUrl, windowWebPreferences } from '../../main/electron/security';
 import { backendArgsFrom } from '../../main/electron/args';
 import { menuTemplate, SAFETY_CAUTION } from '../../main/electron/menu';
-import type { AppCommand } from '../../shared/ipc/pushes';
+import type { AppCommand } from '@shared/ipc/pushes';
 
 // Electron security checklist (electronjs.org/docs/latest/tutorial/security): isolation,
 // sandbox, no Node integration, web security on.

@@ -4,10 +4,10 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import { createRunEngine } from '../../shared/engine/run-engine';
-import { ALARM_CODES, type AlarmEvent, type EngineEvent } from '../../shared/engine/types';
-import { ALARM_RULES } from '../../shared/engine/alarms';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import { createRunEngine } from '@shared/engine/run-engine';
+import { ALARM_CODES, type AlarmEvent, type EngineEvent } from '@shared/engine/types';
+import { ALARM_RULES } from '@shared/engine/alarms';
 import { alarmsOf, noise, phasesOf, pushAll, steady } from './engine-synthetic';
 
 // Invented demo pack: a 3S Li-ion garden-sensor pack, 2.5 Ah at 1 A.

@@ -1,10 +1,10 @@
 /** Run metrics against published worked examples (coulomb counting) and exact synthetic cases. */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import { createRunEngine } from '../../shared/engine/run-engine';
-import { EnergyCounter, SocEstimator, StepResistance, TaperModel } from '../../shared/engine/metrics';
-import type { TimedSample } from '../../shared/engine/types';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import { createRunEngine } from '@shared/engine/run-engine';
+import { EnergyCounter, SocEstimator, StepResistance, TaperModel } from '@shared/engine/metrics';
+import type { TimedSample } from '@shared/engine/types';
 import { pushAll, steady } from './engine-synthetic';
 
 const close = (actual: number | null, expected: number, tol: number, what: string) =>

@@ -5,9 +5,9 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import { createRunEngine } from '../../shared/engine/run-engine';
-import type { TimedSample } from '../../shared/engine/types';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import { createRunEngine } from '@shared/engine/run-engine';
+import type { TimedSample } from '@shared/engine/types';
 import { alarmsOf, ccCvCharge, noise, phasesOf, pushAll, steady } from './engine-synthetic';
 
 // Invented demo pack: a 3S Li-ion pack of a trail camera, 2.5 Ah charged at 1 A, ending at 0.1 A.

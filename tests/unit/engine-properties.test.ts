@@ -5,10 +5,10 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { profileFromChemistry } from '../../shared/chemistry/profile';
-import { createRunEngine } from '../../shared/engine/run-engine';
-import type { EngineEvent, TimedSample } from '../../shared/engine/types';
-import { CHEMISTRIES } from '../../shared/chemistry/types';
+import { profileFromChemistry } from '@shared/chemistry/profile';
+import { createRunEngine } from '@shared/engine/run-engine';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import { CHEMISTRIES } from '@shared/chemistry/types';
 
 const sampleArb = fc.record({
   dtS: fc.double({ min: 0.1, max: 10, noNaN: true }),

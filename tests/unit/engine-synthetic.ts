@@ -3,7 +3,7 @@
  * circuit voltage rising linearly with state of charge, a series resistance) behind an ideal
  * CC/CV charger. It is only meant to produce the shapes of a charge, not any real cell.
  */
-import type { AlarmEvent, EngineEvent, RunEngine, TimedSample } from '../../shared/engine/types';
+import type { AlarmEvent, EngineEvent, RunEngine, TimedSample } from '@shared/engine/types';
 
 /** Deterministic noise (a 32-bit linear congruential generator, Numerical Recipes constants). */
 export function noise(seed: number): () => number {

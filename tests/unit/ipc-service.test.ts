@@ -4,8 +4,8 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import type { TimedSample } from '../../shared/engine/types';
-import type { PushEnvelope, SampleBatch } from '../../shared/ipc/pushes';
+import type { TimedSample } from '@shared/engine/types';
+import type { PushEnvelope, SampleBatch } from '@shared/ipc/pushes';
 import { AckBook } from '../../main/app/acks';
 import { answerRequest, answerText } from '../../main/app/dispatch';
 import { StationHistory } from '../../main/app/history';

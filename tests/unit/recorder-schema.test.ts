@@ -1,11 +1,18 @@
 /** Schema versions: an older file is upgraded at open, a newer one is refused untouched. */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
-import { defaultDbPath, migrate, openRecorder, RecorderOpenError, SCHEMA_VERSION } from '../../main/recorder';
+import {
+  defaultDbPath,
+  migrate,
+  openRecorder,
+  openRunReader,
+  RecorderOpenError,
+  SCHEMA_VERSION,
+} from '../../main/recorder';
 
 test('a version 1 file (no rollup table) is upgraded at open and its rollup built from the samples', () => {
   const dir = mkdtempSync(join(tmpdir(), 'taperline-schema-'));
@@ -107,6 +114,21 @@ test('opening a database in a folder that cannot be created says so in words', (
         /nothing was recorded/.test(err.message) &&
         !/\n\s+at /.test(err.message),
     );
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('a reader never creates a database where there is none', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-schema-'));
+  try {
+    const path = join(dir, 'absent.sqlite');
+    assert.throws(
+      () => openRunReader(path),
+      (err: unknown) =>
+        err instanceof RecorderOpenError && err.message === `no such recording database: ${path}`,
+    );
+    assert.equal(existsSync(path), false);
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }

@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
 import Database from 'better-sqlite3';
 import { parse } from 'csv-parse/sync';
-import type { TimedSample } from '../../shared/engine/types';
+import type { TimedSample } from '@shared/engine/types';
 import { openRecorder, openRunReader } from '../../main/recorder';
 import type { Recorder, RunStart } from '../../main/recorder/types';
 
@@ -211,6 +211,25 @@ test('batches reach the file on the flush timer, without an explicit flush', asy
   }
 });
 
+test('a large batch is committed at once, before the timer', () => {
+  const { dir, path } = tempDb();
+  try {
+    const rec = openRecorder(path, { batchRows: 100, flushIntervalMs: 60_000 });
+    const { runId } = rec.startRun(START);
+    for (let i = 0; i < 250; i++)
+      rec.addLine(runId, { rxS: START.startRxS + i, text: `l${i}`, kind: 'sample' });
+    const other = new Database(path, { readonly: true });
+    const n = (other.prepare('SELECT count(*) AS n FROM lines').get() as { n: number }).n;
+    other.close();
+    // Two full batches of 100 were written when they filled; the last 50 wait for the timer or a flush.
+    assert.equal(n, 200);
+    assert.equal(rec.health().pending, 50);
+    rec.close();
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
 test('a run left open by a crash is closed as interrupted, or continued within the resume window', () => {
   const { dir, path } = tempDb();
   try {
@@ -285,15 +304,21 @@ test('a locked database is reported once as critical, rows are kept and written 
     );
     assert.equal(rec.health().ok, false);
     assert.ok(rec.health().pending >= 40);
+    // A run started while the file is locked gets its id at once; its row waits with the rest.
+    const second = rec.startRun({ ...START, stationId: 'bench-2', startRxS: START.startRxS + 50 });
+    assert.equal(second.runId, runId + 1);
+    fill(rec, second.runId, 5);
     await new Promise((r) => setTimeout(r, 200));
     assert.equal(problems.length, 1, 'the same problem is said once');
     locker.exec('COMMIT');
     locker.close();
-    await new Promise((r) => setTimeout(r, 200));
+    for (let i = 0; i < 200 && recovered.length === 0; i++) await new Promise((r) => setTimeout(r, 25));
     assert.equal(recovered.length, 1);
     assert.match(recovered[0], /nothing was lost/);
     assert.equal(rec.health().ok, true);
     assert.equal([...rec.lineIterator(runId)].length, 30);
+    assert.equal(rec.getRun(second.runId)?.stationId, 'bench-2');
+    assert.equal([...rec.lineIterator(second.runId)].length, 5);
     rec.close();
   } finally {
     rmSync(dir, { recursive: true, force: true });
@@ -311,7 +336,8 @@ test('a backlog past its cap drops the oldest rows and counts them', () => {
     locker.exec('BEGIN EXCLUSIVE');
     rec.addLine(runId, { rxS: START.startRxS, text: 'first', kind: 'sample' });
     rec.flush();
-    for (let i = 0; i < 150; i++) rec.addLine(runId, { rxS: START.startRxS + i + 1, text: `l${i}`, kind: 'sample' });
+    for (let i = 0; i < 150; i++)
+      rec.addLine(runId, { rxS: START.startRxS + i + 1, text: `l${i}`, kind: 'sample' });
     const { dropped, pending } = rec.health();
     assert.ok(pending <= 100, `pending ${pending}`);
     assert.equal(dropped + pending, 151, 'every row is either kept or counted as dropped');

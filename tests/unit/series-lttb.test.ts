@@ -2,7 +2,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
 import { LTTB } from 'downsample';
-import { lttb, lttbIndices } from '../../shared/series/lttb';
+import { lttb, lttbIndices } from '@shared/series/lttb';
 
 // REFERENCES section 7 check vector (downsample-lttb README; downsample-lttb-ts README).
 const VECTOR: [number, number][] = [

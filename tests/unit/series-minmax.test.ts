@@ -1,7 +1,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { minMaxDecimate, minMaxIndices } from '../../shared/series/min-max';
+import { minMaxDecimate, minMaxIndices } from '@shared/series/min-max';
 
 test('a one-sample spike survives decimation (the reason for min-max)', () => {
   // Invented demo series: a flat 8.20 V charge with one 9.1 V sample and one dropout to 0 V.

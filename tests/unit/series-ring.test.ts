@@ -1,7 +1,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { RingBuffer } from '../../shared/series/ring-buffer';
+import { RingBuffer } from '@shared/series/ring-buffer';
 
 test('keeps the newest capacity points, oldest first', () => {
   const ring = new RingBuffer(3);

@@ -9,11 +9,11 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { getScenario, listScenarios, SCENARIO_NAMES, simulatedLines } from '../../main/simulator';
 import { createBench } from '../../main/simulator/bench';
-import { parseProfile } from '../../shared/chemistry/profile';
-import { createLineParser } from '../../shared/telemetry/parse-line';
-import { nmeaChecksum } from '../../shared/telemetry/checksum';
-import { thermistorReading } from '../../shared/chemistry/thermistor';
-import type { Sample } from '../../shared/telemetry/types';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createLineParser } from '@shared/telemetry/parse-line';
+import { nmeaChecksum } from '@shared/telemetry/checksum';
+import { thermistorReading } from '@shared/chemistry/thermistor';
+import type { Sample } from '@shared/telemetry/types';
 
 const PROFILE_DIR = join(__dirname, '..', 'fixtures', 'profiles');
 

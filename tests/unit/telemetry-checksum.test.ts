@@ -1,6 +1,6 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { appendChecksum, nmeaChecksum, splitChecksum } from '../../shared/telemetry/checksum';
+import { appendChecksum, nmeaChecksum, splitChecksum } from '@shared/telemetry/checksum';
 
 // REFERENCES section 8, "Valid vectors", each with the page that printed it.
 const VALID: { line: string; source: string }[] = [

@@ -1,10 +1,10 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { csvHeaderLine, formatTelemetryLine, type LineValue } from '../../shared/telemetry/format-line';
-import { createLineParser } from '../../shared/telemetry/parse-line';
-import { splitChecksum } from '../../shared/telemetry/checksum';
-import type { LineResult, Sample } from '../../shared/telemetry/types';
+import { csvHeaderLine, formatTelemetryLine, type LineValue } from '@shared/telemetry/format-line';
+import { createLineParser } from '@shared/telemetry/parse-line';
+import { splitChecksum } from '@shared/telemetry/checksum';
+import type { LineResult, Sample } from '@shared/telemetry/types';
 
 const EXAMPLE = {
   t: 812.5,

@@ -1,8 +1,8 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { capLine, LineFramer } from '../../shared/telemetry/framer';
-import { MAX_LINE_BYTES } from '../../shared/telemetry/types';
+import { capLine, LineFramer } from '@shared/telemetry/framer';
+import { MAX_LINE_BYTES } from '@shared/telemetry/types';
 
 type Framed = [text: string, tooLong: boolean];
 const enc = new TextEncoder();

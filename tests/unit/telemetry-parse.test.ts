@@ -1,8 +1,8 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { createLineParser } from '../../shared/telemetry/parse-line';
-import { appendChecksum } from '../../shared/telemetry/checksum';
-import type { LineResult, ParserOptions, Sample } from '../../shared/telemetry/types';
+import { createLineParser } from '@shared/telemetry/parse-line';
+import { appendChecksum } from '@shared/telemetry/checksum';
+import type { LineResult, ParserOptions, Sample } from '@shared/telemetry/types';
 
 function sampleOf(result: LineResult): Sample {
   assert.equal(result.kind, 'sample', `expected a sample, got ${JSON.stringify(result)}`);

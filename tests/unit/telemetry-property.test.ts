@@ -1,10 +1,10 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { appendChecksum } from '../../shared/telemetry/checksum';
-import { LineFramer } from '../../shared/telemetry/framer';
-import { createLineParser } from '../../shared/telemetry/parse-line';
-import { MAX_LINE_BYTES, type LineResult, type ParserOptions } from '../../shared/telemetry/types';
+import { appendChecksum } from '@shared/telemetry/checksum';
+import { LineFramer } from '@shared/telemetry/framer';
+import { createLineParser } from '@shared/telemetry/parse-line';
+import { MAX_LINE_BYTES, type LineResult, type ParserOptions } from '@shared/telemetry/types';
 
 const OPTIONS: ParserOptions = {
   fields: { vbat: { key: 'vb', unit: 'mV' } },

@@ -7,7 +7,7 @@ import {
   parseFieldValue,
   parsePlainNumber,
   scanDecimal,
-} from '../../shared/telemetry/units';
+} from '@shared/telemetry/units';
 
 const valueOf = (text: string, field: Parameters<typeof parseFieldValue>[1]) => {
   const r = parseFieldValue(text, field, field);

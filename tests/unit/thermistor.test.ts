@@ -9,8 +9,8 @@ import {
   steinhartHartTemperatureC,
   thermistorReading,
   thermistorTemperature,
-} from '../../shared/chemistry/thermistor';
-import type { ThermistorModel } from '../../shared/telemetry/types';
+} from '@shared/chemistry/thermistor';
+import type { ThermistorModel } from '@shared/telemetry/types';
 
 const near = (actual: number, expected: number, tol: number, what: string) =>
   assert.ok(Math.abs(actual - expected) <= tol, `${what}: ${actual} is not within ${tol} of ${expected}`);

@@ -2,7 +2,10 @@
 import type { Page } from 'playwright-core';
 
 /** Open a view with its keyboard shortcut (Alt+1..6), as a person would. */
-export async function openViewByKey(page: Page, view: 'bench' | 'rack' | 'runs' | 'feed' | 'connect' | 'diagnosis'): Promise<void> {
+export async function openViewByKey(
+  page: Page,
+  view: 'bench' | 'rack' | 'runs' | 'feed' | 'connect' | 'diagnosis',
+): Promise<void> {
   const index = ['bench', 'rack', 'runs', 'feed', 'connect', 'diagnosis'].indexOf(view) + 1;
   await page.keyboard.press(`Alt+${index}`);
   await page.locator(`#view-${view}`).waitFor({ state: 'visible' });

@@ -21,18 +21,43 @@ export interface ServeHandle {
 const CLI = join(process.cwd(), 'dist', 'cli.cjs');
 const START_TIMEOUT_MS = 30_000;
 
-export async function startServe(extraArgs: string[]): Promise<ServeHandle> {
-  const dir = mkdtempSync(join(tmpdir(), 'taperline-e2e-'));
+export interface ServeOptions {
+  /** A fixed port (to start again where a page was connected); default any free port. */
+  port?: number;
+  /** Reuse this folder (and its database) instead of a fresh temp dir. */
+  dir?: string;
+  /** Leave the folder in place on stop (for a restart that reuses it). */
+  keepDir?: boolean;
+}
+
+export async function startServe(extraArgs: string[], options: ServeOptions = {}): Promise<ServeHandle> {
+  const dir = options.dir ?? mkdtempSync(join(tmpdir(), 'taperline-e2e-'));
   const dbPath = join(dir, 'runs.sqlite');
-  const args = [CLI, 'serve', '--host', '127.0.0.1', '--port', '0', '--db', dbPath, ...extraArgs];
-  const child: ChildProcess = spawn(process.execPath, args, { stdio: ['ignore', 'pipe', 'pipe'], env: { ...process.env } });
+  const args = [
+    CLI,
+    'serve',
+    '--host',
+    '127.0.0.1',
+    '--port',
+    String(options.port ?? 0),
+    '--db',
+    dbPath,
+    ...extraArgs,
+  ];
+  const child: ChildProcess = spawn(process.execPath, args, {
+    stdio: ['ignore', 'pipe', 'pipe'],
+    env: { ...process.env },
+  });
   let out = '';
   child.stdout!.on('data', (d) => (out += String(d)));
   child.stderr!.on('data', (d) => (out += String(d)));
   const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
 
   const url = await new Promise<string>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`taperline serve printed no address within ${START_TIMEOUT_MS} ms:\n${out}`)), START_TIMEOUT_MS);
+    const timer = setTimeout(
+      () => reject(new Error(`taperline serve printed no address within ${START_TIMEOUT_MS} ms:\n${out}`)),
+      START_TIMEOUT_MS,
+    );
     const onData = () => {
       const m = /serving at (http:\/\/\S+)/.exec(out);
       if (m) {
@@ -61,7 +86,7 @@ export async function startServe(extraArgs: string[]): Promise<ServeHandle> {
         if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL');
         await exited;
       }
-      rmSync(dir, { recursive: true, force: true });
+      if (!options.keepDir) rmSync(dir, { recursive: true, force: true });
     },
   };
 }

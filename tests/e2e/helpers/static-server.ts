@@ -7,9 +7,16 @@ import { readFile } from 'node:fs/promises';
 import { extname, join, normalize } from 'node:path';
 import type { AddressInfo } from 'node:net';
 
-const TYPES: Record<string, string> = { '.html': 'text/html; charset=utf-8', '.js': 'text/javascript', '.css': 'text/css', '.map': 'application/json' };
+const TYPES: Record<string, string> = {
+  '.html': 'text/html; charset=utf-8',
+  '.js': 'text/javascript',
+  '.css': 'text/css',
+  '.map': 'application/json',
+};
 
-export async function serveRenderer(dir = join(process.cwd(), 'dist', 'renderer')): Promise<{ url: string; close(): Promise<void> }> {
+export async function serveRenderer(
+  dir = join(process.cwd(), 'dist', 'renderer'),
+): Promise<{ url: string; close(): Promise<void> }> {
   const server: Server = createServer(async (req, res) => {
     const path = new URL(req.url ?? '/', 'http://127.0.0.1').pathname;
     const file = normalize(join(dir, path === '/' ? 'index.html' : path));

@@ -1,0 +1,22 @@
+/**
+ * `npm run bench`: every benchmark in turn, each in its own process so one's heap and JIT
+ * state do not colour the next. They print figures; nothing here passes or fails on time.
+ * Extra arguments (e.g. --quick) are passed to each.
+ */
+import { spawnSync } from 'node:child_process';
+import { join } from 'node:path';
+
+const BENCHES = ['parse-bench.ts', 'engine-bench.ts', 'replay-bench.ts', 'record-bench.ts', 'chart-bench.ts'];
+const extra = process.argv.slice(2);
+let failed = 0;
+for (const bench of BENCHES) {
+  console.log(`\n=== ${bench} ===`);
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(__dirname, bench), ...extra], {
+    stdio: 'inherit',
+  });
+  if (r.status !== 0) {
+    failed++;
+    console.log(`${bench} exited with ${r.status ?? r.signal}`);
+  }
+}
+process.exitCode = failed ? 1 : 0;
