@@ -55,7 +55,7 @@ export async function streamTelemetryLines(
     index++;
   });
   const input =
-    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 20 });
+    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 16 });
   for await (const chunk of input) {
     framer.push(chunk as Buffer);
   }
@@ -74,7 +74,7 @@ export async function* readTelemetryLines(path: string, options: ReadOptions = {
     index++;
   });
   const input =
-    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 20 });
+    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 16 });
   for await (const chunk of input) {
     framer.push(chunk as Buffer);
     if (batch.length) {
