@@ -1,15 +1,21 @@
 /**
  * Decoders for the parts of replies and pushes the renderer reads.
  *
- * shared/ipc types several payloads as `unknown` (their TypeScript types live in main/, which
- * the renderer may not import). Rather than trust them blindly, each payload is checked here
- * at the edge with zod, for exactly the fields the views read; everything else passes through.
- * Types that live in shared/ (run state, profile, engine events) are used as they are.
+ * The payload types are those of shared/ipc/payloads.ts, the same the backend builds. Data
+ * from a socket is not trusted blindly: each payload is checked here at the edge with zod,
+ * for exactly the fields the views read; everything else passes through.
  */
 import { z } from 'zod';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { EngineEvent, RunState } from '@shared/engine/types';
-import type { RejectReason } from '@shared/telemetry/types';
+import type {
+  FeedLine,
+  OverviewBucket,
+  RunRow,
+  SeriesField,
+  SourceStatus,
+  StationSnapshot,
+} from '@shared/ipc/payloads';
 
 const sourceStatus = z.looseObject({
   state: z.enum(['connecting', 'open', 'lost', 'closed']),
@@ -34,23 +40,13 @@ const snapshotSchema = z.looseObject({
   recording: z.looseObject({ ok: z.boolean(), problem: z.string().nullable() }),
 });
 
-export interface StationView {
-  id: string;
-  label: string;
-  sourceLabel: string;
-  source: { state: 'connecting' | 'open' | 'lost' | 'closed'; detail: string };
-  runId: number | null;
-  profile: ResolvedProfile;
-  state: RunState;
-  lines: number;
-  rejected: number;
-  recording: { ok: boolean; problem: string | null };
-}
+export type StationView = StationSnapshot;
 
 export function readStation(raw: unknown): StationView {
   const parsed = snapshotSchema.parse(raw);
   return {
     ...parsed,
+    source: parsed.source as SourceStatus,
     profile: parsed.profile as unknown as ResolvedProfile,
     state: parsed.state as unknown as RunState,
   };
@@ -71,13 +67,7 @@ const feedLineSchema = z.looseObject({
   detail: z.string().optional(),
 });
 
-export interface FeedRow {
-  rxS: number;
-  text: string;
-  kind: 'sample' | 'header' | 'firmware' | 'blank' | 'rejected' | 'sent';
-  reason?: RejectReason;
-  detail?: string;
-}
+export type FeedRow = FeedLine;
 
 export function readFeedLines(raw: unknown): FeedRow[] {
   return z.array(feedLineSchema).parse(raw) as FeedRow[];
@@ -99,20 +89,19 @@ const runRowSchema = z.looseObject({
   rejected: z.number(),
 });
 
-export type RunListRow = z.infer<typeof runRowSchema>;
+export type RunListRow = RunRow;
 
 export function readRuns(raw: unknown): RunListRow[] {
   const list = Array.isArray(raw) ? raw : z.looseObject({ runs: z.array(z.unknown()) }).parse(raw).runs;
-  return list.map((row) => runRowSchema.parse(row));
+  return list.map((row) => runRowSchema.parse(row) as RunRow);
 }
 
 export function readRun(raw: unknown): RunListRow {
   return runRowSchema.parse(
     raw && typeof raw === 'object' && 'run' in raw ? (raw as { run: unknown }).run : raw,
-  );
+  ) as RunRow;
 }
 
-export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
 const stats = z.looseObject({ min: z.number(), max: z.number(), mean: z.number() });
 const bucketSchema = z.looseObject({
   t0S: z.number(),
@@ -120,12 +109,8 @@ const bucketSchema = z.looseObject({
   count: z.number(),
   values: z.record(z.string(), stats.optional()),
 });
-export interface Bucket {
-  t0S: number;
-  t1S: number;
-  count: number;
-  values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
-}
+export type Bucket = OverviewBucket;
+export type { SeriesField };
 
 export function readBuckets(raw: unknown): Bucket[] {
   const list = Array.isArray(raw) ? raw : z.looseObject({ buckets: z.array(z.unknown()) }).parse(raw).buckets;

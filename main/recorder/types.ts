@@ -1,37 +1,10 @@
 /** Contract of the SQLite recorder, read by the Runs view, replay, diagnose and report. */
 import type { Writable } from 'node:stream';
+import type { OverviewBucket, RunEndReason, RunRow, SeriesField } from '@shared/ipc/payloads';
+
+export type { OverviewBucket, RunEndReason, RunRow, SeriesField };
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { FeedLine } from '../station/types';
-
-export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';
-
-export interface RunRow {
-  id: number;
-  stationId: string;
-  stationLabel: string;
-  profileName: string;
-  chemistry: string;
-  /** Receive time of the run's start / end, seconds since the Unix epoch. */
-  startRxS: number;
-  endRxS: number | null;
-  endReason: RunEndReason | null;
-  durationS: number;
-  ah: number;
-  wh: number;
-  lines: number;
-  rejected: number;
-}
-
-/** Canonical sample columns that overview queries can bucket. */
-export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
-
-/** One time bucket of an overview: min/max/mean of each requested field over [t0S, t1S). */
-export interface OverviewBucket {
-  t0S: number;
-  t1S: number;
-  count: number;
-  values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
-}
 
 export interface RunReader {
   listRuns(): RunRow[];

@@ -3,6 +3,9 @@
  * the built-in simulated charger, a replayed file). Every source feeds the same pipeline.
  */
 import type { EventEmitter } from 'node:events';
+import type { SourceStatus } from '@shared/ipc/payloads';
+
+export type { SourceStatus };
 
 export interface SourceLine {
   /** The line without its newline (and without a trailing `\r`). */
@@ -12,13 +15,6 @@ export interface SourceLine {
   /** The line was cut at MAX_LINE_BYTES; the rest up to the next newline was dropped. */
   tooLong: boolean;
 }
-
-export type SourceStatus =
-  | { state: 'connecting'; detail: string }
-  | { state: 'open'; detail: string }
-  /** Telemetry interrupted (unplug, vanished device); the source keeps retrying. */
-  | { state: 'lost'; detail: string; sinceRxS: number }
-  | { state: 'closed'; detail: string };
 
 export interface LineSourceEvents {
   line: [SourceLine];

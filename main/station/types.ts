@@ -3,10 +3,10 @@
  * Electron shell. A station is one charger on one source, with its profile, pipeline and run.
  */
 import type { EventEmitter } from 'node:events';
-import type { ResolvedProfile } from '@shared/chemistry/types';
-import type { EngineEvent, RunState, TimedSample } from '@shared/engine/types';
-import type { RejectReason } from '@shared/telemetry/types';
-import type { SourceStatus } from '../sources/types';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import type { FeedLine, SourceStatus, StationSnapshot } from '@shared/ipc/payloads';
+
+export type { FeedLine, StationSnapshot };
 
 export type SerialSourceConfig = {
   kind: 'serial';
@@ -41,28 +41,6 @@ export interface StationConfig {
    * and the run starts with that first sample.
    */
   profile: unknown;
-}
-
-/** One received line as the Line feed shows it. */
-export interface FeedLine {
-  rxS: number;
-  text: string;
-  kind: 'sample' | 'header' | 'firmware' | 'blank' | 'rejected' | 'sent';
-  reason?: RejectReason;
-  detail?: string;
-}
-
-export interface StationSnapshot {
-  id: string;
-  label: string;
-  sourceLabel: string;
-  source: SourceStatus;
-  runId: number | null;
-  profile: ResolvedProfile;
-  state: RunState;
-  lines: number;
-  rejected: number;
-  recording: { ok: boolean; problem: string | null };
 }
 
 export interface StationManagerEvents {

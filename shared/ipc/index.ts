@@ -1,3 +1,4 @@
 export * from './channels';
 export * from './requests';
 export * from './pushes';
+export * from './payloads';

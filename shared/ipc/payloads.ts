@@ -1,0 +1,67 @@
+/**
+ * The data the backend sends to the views (replies and pushes): plain serialisable types,
+ * shared by the shell (main/) and the renderer, which may not import main/.
+ */
+import type { ResolvedProfile } from '../chemistry/types';
+import type { RunState } from '../engine/types';
+import type { RejectReason } from '../telemetry/types';
+
+/** State of a line source (serial port, simulator, replay). */
+export type SourceStatus =
+  | { state: 'connecting'; detail: string }
+  | { state: 'open'; detail: string }
+  /** Telemetry interrupted (unplug, vanished device); the source keeps retrying. */
+  | { state: 'lost'; detail: string; sinceRxS: number }
+  | { state: 'closed'; detail: string };
+
+/** One received line as the Line feed shows it. */
+export interface FeedLine {
+  rxS: number;
+  text: string;
+  kind: 'sample' | 'header' | 'firmware' | 'blank' | 'rejected' | 'sent';
+  reason?: RejectReason;
+  detail?: string;
+}
+
+export interface StationSnapshot {
+  id: string;
+  label: string;
+  sourceLabel: string;
+  source: SourceStatus;
+  runId: number | null;
+  profile: ResolvedProfile;
+  state: RunState;
+  lines: number;
+  rejected: number;
+  recording: { ok: boolean; problem: string | null };
+}
+
+export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';
+
+export interface RunRow {
+  id: number;
+  stationId: string;
+  stationLabel: string;
+  profileName: string;
+  chemistry: string;
+  /** Receive time of the run's start / end, seconds since the Unix epoch. */
+  startRxS: number;
+  endRxS: number | null;
+  endReason: RunEndReason | null;
+  durationS: number;
+  ah: number;
+  wh: number;
+  lines: number;
+  rejected: number;
+}
+
+/** Canonical sample columns that overview queries can bucket. */
+export type SeriesField = 'vbatV' | 'ibatA' | 'tempC' | 'vinV' | 'iinA';
+
+/** One time bucket of an overview: min/max/mean of each requested field over [t0S, t1S). */
+export interface OverviewBucket {
+  t0S: number;
+  t1S: number;
+  count: number;
+  values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
+}
