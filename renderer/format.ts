@@ -1,4 +1,5 @@
 /** Display formatting: durations on the run's time axis, numbers with their units. */
+import { formatRunClock } from '@shared/engine/time-format';
 import type { Phase } from '@shared/engine/types';
 
 /** Seconds of run -> `h:mm` (or `d h:mm` past a day), the label format of every time axis. */
@@ -16,11 +17,7 @@ export function formatRunTime(tS: number): string {
 /** Seconds -> `h:mm:ss`, for elapsed times a person reads on the bench. */
 export function formatDuration(durationS: number | null | undefined): string {
   if (durationS === null || durationS === undefined || !Number.isFinite(durationS)) return '–';
-  const total = Math.max(0, Math.round(durationS));
-  const hours = Math.floor(total / 3600);
-  const minutes = Math.floor((total % 3600) / 60);
-  const seconds = total % 60;
-  return `${hours}:${String(minutes).padStart(2, '0')}:${String(seconds).padStart(2, '0')}`;
+  return formatRunClock(durationS);
 }
 
 export function formatNumber(value: number | null | undefined, digits: number, unit = ''): string {

@@ -3,7 +3,7 @@
  * command line and the API service. `taperline serve` and the Electron backend child both
  * start exactly this, so the desktop app and the web mode cannot drift apart.
  */
-import { readFileSync } from 'node:fs';
+import { readValidatedProfileJson } from '../cli/profile-file';
 import { openRecorder, defaultDbPath } from '../recorder';
 import type { Recorder } from '../recorder/types';
 import { createStationManager } from '../station';
@@ -121,22 +121,9 @@ function initialStations(options: BackendOptions): StationConfig[] {
       id: 'bench-1',
       label: options.serial.path,
       source: { kind: 'serial', path: options.serial.path, baudRate: options.serial.baudRate },
-      profile: readProfileJson(options.serial.profilePath),
+      // Throws a one-line error naming the file (or the bad key); startBackend reports it.
+      profile: readValidatedProfileJson(options.serial.profilePath),
     });
   }
   return configs;
-}
-
-function readProfileJson(path: string): unknown {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (err) {
-    throw new BackendStartError(`cannot read profile ${path}: ${(err as Error).message}`);
-  }
-  try {
-    return JSON.parse(text);
-  } catch (err) {
-    throw new BackendStartError(`profile ${path} is not valid JSON: ${(err as Error).message}`);
-  }
 }

@@ -5,8 +5,6 @@
  */
 import { createWriteStream } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
-import { pipeline } from 'node:stream/promises';
-import { PassThrough } from 'node:stream';
 import { answerRequest, errorText } from './dispatch';
 import { startBackend, type Backend, type BackendOptions } from './backend';
 import { isParentMessage, type ChildToParent } from './child-protocol';
@@ -54,12 +52,16 @@ export async function runChildBackend(
           return answer.path ?? null;
         },
       },
+      // The export ends (or, on failure, destroys) the file stream, so a write error rejects here.
       writeCsvFile: async (runId, path) => {
-        const through = new PassThrough();
-        const written = pipeline(through, createWriteStream(path));
-        await backend!.recorder!.exportCsv(runId, through);
-        through.end();
-        await written;
+        try {
+          await backend!.recorder!.exportCsv(runId, createWriteStream(path));
+        } catch (err) {
+          throw new Error(
+            `the CSV was not written to ${path}: ${errorText(err)}; the run is still in the recording, so export it again to another folder`,
+            { cause: err },
+          );
+        }
       },
       writeReportFile: async (runId, path, pdf) => {
         const html = await realLibraries.runReportHtml(backend!.recorder!, runId);

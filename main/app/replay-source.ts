@@ -2,10 +2,15 @@
  * Replays a recorded run as a live source: its received lines, read again in order from the
  * recorder and handed to a station's pipeline at `speed` times the original pace (or as fast
  * as the event loop allows for `max`). Same LineSource contract as a serial port.
+ *
+ * The speed only decides when a line is handed on. Each line keeps its recorded receive
+ * spacing (moved to start now) and its cut (`tooLong`) flag, so the app's replay reads exactly
+ * what `taperline replay --db` reads and gives the same times, Ah and Wh.
  */
 import { EventEmitter } from 'node:events';
 import type { RunReader } from '../recorder/types';
-import type { LineSource, LineSourceEvents } from '../sources/types';
+import type { LineSource, LineSourceEvents, SourceLine } from '../sources/types';
+import type { RecordedClockSource } from '../station/manager';
 
 /** A replay is asked for as a simulator source whose scenario names the run: `run:12` or `run:12:max`. */
 export const REPLAY_SCENARIO = /^run:(\d{1,12})(:max)?$/;
@@ -24,10 +29,12 @@ const MAX_LINES_PER_TURN = 500;
 /** Longest single wait, so stop() is never held up by a long gap in the recording. */
 const MAX_WAIT_MS = 250;
 
-export class ReplaySource extends EventEmitter<LineSourceEvents> implements LineSource {
+export class ReplaySource extends EventEmitter<LineSourceEvents> implements LineSource, RecordedClockSource {
   readonly label: string;
-  private iterator: Iterator<{ text: string; rxS: number }> | null = null;
-  private pending: { text: string; rxS: number } | null = null;
+  /** The lines carry the recording's clock: the station manager must not tick silence on wall time. */
+  readonly recordedClock = true;
+  private iterator: Iterator<{ text: string; rxS: number; tooLong?: boolean }> | null = null;
+  private pending: SourceLine | null = null;
   private firstRecordedRxS: number | null = null;
   private startedS = 0;
   private timer: NodeJS.Timeout | null = null;
@@ -85,23 +92,26 @@ export class ReplaySource extends EventEmitter<LineSourceEvents> implements Line
         return;
       }
       this.firstRecordedRxS ??= line.rxS;
-      const dueS =
-        this.speed === null ? this.now() : this.startedS + (line.rxS - this.firstRecordedRxS) / this.speed;
-      const waitMs = (dueS - this.now()) * 1000;
-      if (waitMs > 1) {
-        this.pending = line;
-        this.schedule(waitMs);
-        return;
+      const recordedOffsetS = line.rxS - this.firstRecordedRxS;
+      if (this.speed !== null) {
+        const waitMs = (this.startedS + recordedOffsetS / this.speed - this.now()) * 1000;
+        if (waitMs > 1) {
+          this.pending = line;
+          this.schedule(waitMs);
+          return;
+        }
       }
-      // The receive clock of a replay is the replay's own: the recorded spacing, compressed.
-      this.emit('line', { text: line.text, rxS: dueS, tooLong: false });
+      // The recorded spacing, not the paced one: a run without device time keeps its durations.
+      this.emit('line', { text: line.text, rxS: this.startedS + recordedOffsetS, tooLong: line.tooLong });
       if (this.state !== 'running') return;
     }
     this.schedule(0);
   }
 
-  private next(): { text: string; rxS: number } | null {
+  private next(): SourceLine | null {
     const step = this.iterator!.next();
-    return step.done ? null : step.value;
+    if (step.done) return null;
+    const { text, rxS, tooLong } = step.value;
+    return { text, rxS, tooLong: tooLong === true };
   }
 }

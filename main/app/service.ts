@@ -12,6 +12,7 @@ import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { RunReader } from '../recorder/types';
 import type { StationManager, StationSnapshot } from '../station/types';
 import { AckBook, type AlarmAck } from './acks';
+import { runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
@@ -145,8 +146,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       return { url: `/api/runs/${runId}/${file}` };
     }
     if (!write) throw new RequestError(`saving a ${what.toUpperCase()} file is not offered in this window`);
-    const stem = `taperline-run-${runId}-${run.stationId}`;
-    const path = await exportMode.choosePath(`${stem}.${what}`, what);
+    const path = await exportMode.choosePath(`${runFileStem(run)}.${what}`, what);
     if (path === null) return { cancelled: true };
     await write(path);
     return { savedTo: path };
@@ -203,7 +203,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       if (recorder && snapshot.runId !== null && recorder.getRun(snapshot.runId)) {
         return libs.diagnose({
           profile: snapshot.profile,
-          samples: recorder.samples(snapshot.runId, 0, Number.MAX_VALUE),
+          samples: recorder.allSamples(snapshot.runId),
           events: recorder.events(snapshot.runId),
           atT,
         });
@@ -258,7 +258,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       const profile = resolveProfile(rec.profileOf(runId), `the profile recorded with run ${runId}`);
       return libs.diagnose({
         profile,
-        samples: rec.samples(runId, 0, Number.MAX_VALUE),
+        samples: rec.allSamples(runId),
         events: rec.events(runId),
         atT,
       });

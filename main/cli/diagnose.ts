@@ -6,7 +6,7 @@ import type { Command } from 'commander';
 import { diagnose, type Diagnosis } from '@shared/engine/diagnosis';
 import { fmtT } from '@shared/engine/diagnosis/format';
 import { collectRun } from '../report/collect-run';
-import { UsageError } from './errors';
+import { nonNegativeNumber, positiveNumber } from './options';
 import { openLineInput } from './line-input';
 import { loadProfileFile } from './profile-file';
 
@@ -40,24 +40,14 @@ export function registerDiagnose(program: Command): void {
 }
 
 async function runDiagnose(file: string | undefined, options: DiagnoseOptions): Promise<string> {
-  const atT = options.at === undefined ? undefined : parseSeconds('--at', options.at, true);
-  const intervalS = parseSeconds('--interval', options.interval, false);
+  const atT = options.at === undefined ? undefined : nonNegativeNumber('--at', options.at, 'seconds');
+  const intervalS = positiveNumber('--interval', options.interval, 'seconds');
   const profile = options.profile ? loadProfileFile(options.profile) : null;
   const input = openLineInput(file, { db: options.db, run: options.run, intervalS });
   const run = await collectRun(input, profile);
   if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
   const result = diagnose({ profile: run.profile, samples: run.samples, events: run.events, atT });
   return options.json ? JSON.stringify(result) + '\n' : formatDiagnosisText(result, run.samples.length);
-}
-
-function parseSeconds(name: string, text: string, allowZero: boolean): number {
-  const value = Number(text);
-  if (text.trim() === '' || !Number.isFinite(value) || value < 0 || (!allowZero && value === 0)) {
-    throw new UsageError(
-      `${name} must be a ${allowZero ? 'non-negative' : 'positive'} number of seconds (got "${text}")`,
-    );
-  }
-  return value;
 }
 
 /** The readable form: one block per cause, evidence and next steps as bullet lines. */

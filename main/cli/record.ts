@@ -2,17 +2,18 @@
  * `taperline record`: records every given serial port as a station into the recording
  * database, with one live status line per station, until Ctrl-C / SIGTERM closes the runs.
  */
-import { readFileSync } from 'node:fs';
 import type { Command } from 'commander';
-import { parseProfile } from '@shared/chemistry/profile';
 import type { EngineEvent } from '@shared/engine/types';
 import { defaultDbPath } from '../recorder/paths';
 import { openRecorder } from '../recorder/recorder';
 import { RecorderOpenError } from '../recorder/errors';
 import type { Recorder } from '../recorder/types';
-import { createStationManager } from '../station/manager';
+import { StationConfigError } from '../station/errors';
+import { createStationManager, MAX_STATIONS } from '../station/manager';
 import type { StationManager, StationSnapshot } from '../station/types';
 import { UsageError } from './errors';
+import { nonNegativeNumber, positiveInteger } from './options';
+import { readValidatedProfileJson } from './profile-file';
 
 interface RecordOptions {
   port: string[];
@@ -21,37 +22,6 @@ interface RecordOptions {
   db?: string;
   resumeWithin: string;
   statusEvery: string;
-}
-
-/** Baud rates go to the OS as they are; a positive integer is all that can be checked here. */
-function parseBaud(text: string): number {
-  const baud = Number(text);
-  if (!Number.isInteger(baud) || baud <= 0)
-    throw new UsageError(`--baud must be a positive whole number, e.g. 115200 (got "${text}")`);
-  return baud;
-}
-
-function parseSeconds(name: string, text: string): number {
-  const s = Number(text);
-  if (!Number.isFinite(s) || s < 0)
-    throw new UsageError(`${name} must be a number of seconds (got "${text}")`);
-  return s;
-}
-
-/** The profile JSON as written (it is stored with each run), refused with the bad key named. */
-function readProfileJson(path: string): unknown {
-  let json: unknown;
-  try {
-    json = JSON.parse(readFileSync(path, 'utf8'));
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT') throw new UsageError(`no such profile file: ${path}`);
-    if (code) throw new UsageError(`cannot read profile ${path}: ${(err as Error).message}`);
-    throw new UsageError(`profile ${path} is not valid JSON: ${(err as Error).message}`);
-  }
-  const result = parseProfile(json);
-  if (!result.ok) throw new UsageError(`profile ${path} refused: ${result.error}`);
-  return json;
 }
 
 function fmt(value: number | undefined, digits: number, unit: string): string {
@@ -171,12 +141,18 @@ export function registerRecord(program: Command): void {
 }
 
 async function record(options: RecordOptions): Promise<void> {
-  const baudRate = parseBaud(options.baud);
-  const resumeWithinS = parseSeconds('--resume-within', options.resumeWithin);
-  const statusEveryS = parseSeconds('--status-every', options.statusEvery);
+  // Baud rates go to the OS as they are; a positive integer is all that can be checked here.
+  const baudRate = positiveInteger('--baud', options.baud, '115200');
+  const resumeWithinS = nonNegativeNumber('--resume-within', options.resumeWithin, 'seconds');
+  const statusEveryS = nonNegativeNumber('--status-every', options.statusEvery, 'seconds');
   const ports = [...new Set(options.port)];
   if (ports.length === 0) throw new UsageError('give at least one --port PATH (see `taperline ports`)');
-  const profile = options.profile ? readProfileJson(options.profile) : null;
+  // Checked before anything starts, so no run is opened only to be closed again.
+  if (ports.length > MAX_STATIONS)
+    throw new UsageError(
+      `at most ${MAX_STATIONS} stations can record at once (got ${ports.length} --port paths); nothing was recorded: run a second \`taperline record\` with another --db FILE for the rest`,
+    );
+  const profile = options.profile ? readValidatedProfileJson(options.profile) : null;
   const dbPath = options.db ?? defaultDbPath();
   const display = new LiveDisplay(process.stdout, statusEveryS * 1000);
 
@@ -212,12 +188,22 @@ async function record(options: RecordOptions): Promise<void> {
     'Caution: charging lithium and lead-acid cells can start fires; set limits from the cell maker’s datasheet and local codes.\n',
   );
   for (const path of ports) {
-    await manager.addStation({
-      id: `serial:${path}`,
-      label: path,
-      source: { kind: 'serial', path, baudRate },
-      profile,
-    });
+    try {
+      await manager.addStation({
+        id: `serial:${path}`,
+        label: path,
+        source: { kind: 'serial', path, baudRate },
+        profile,
+      });
+    } catch (err) {
+      // Stations already started must not keep their runs open: close them all, then say why.
+      await manager.close();
+      recorder?.close();
+      if (!(err instanceof StationConfigError)) throw err;
+      throw new UsageError(
+        `cannot record ${path}: ${err.message}; the stations already started were stopped and their runs closed`,
+      );
+    }
   }
 
   const refresh = setInterval(() => display.update(snapshots()), 500);

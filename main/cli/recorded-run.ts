@@ -31,7 +31,14 @@ export function openRecordedRun(dbPath: string, run: string): LineInput {
       selector === 'latest' ? `${dbPath} holds no runs` : `${dbPath} has no run ${selector}`,
     );
   }
-  const profile = resolveProfileJson(reader.profileOf(runId), `the profile recorded with run ${runId}`);
+  let profile: ReturnType<typeof resolveProfileJson>;
+  try {
+    profile = resolveProfileJson(reader.profileOf(runId), `the profile recorded with run ${runId}`);
+  } catch (err) {
+    // A bad recorded profile must not leave the database open behind the usage error.
+    reader.close();
+    throw err;
+  }
   return {
     profile,
     forEach: async (onLine) => {

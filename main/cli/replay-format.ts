@@ -1,4 +1,5 @@
 /** How replay prints events and the summary. */
+import { formatRunClock } from '@shared/engine/time-format';
 import type { EngineEvent, RunSummary } from '@shared/engine/types';
 
 const round = (value: number, digits: number) => Number(value.toFixed(digits));
@@ -18,12 +19,7 @@ export function summaryRecord(summary: RunSummary) {
   };
 }
 
-export function formatClock(tS: number): string {
-  const s = Math.max(0, Math.round(tS));
-  const h = Math.floor(s / 3600);
-  const m = Math.floor((s % 3600) / 60);
-  return `${h}:${String(m).padStart(2, '0')}:${String(s % 60).padStart(2, '0')}`;
-}
+export const formatClock = formatRunClock;
 
 export function formatEventText(event: EngineEvent): string {
   const at = formatClock(event.t).padStart(9);

@@ -4,7 +4,7 @@
  */
 import type { Command } from 'commander';
 import type { EngineEvent, RunSummary } from '@shared/engine/types';
-import { UsageError } from './errors';
+import { positiveNumber, speedOrMax } from './options';
 import { loadProfileFile } from './profile-file';
 import { openLineInput } from './line-input';
 import { ProfiledRun } from './profiled-run';
@@ -37,25 +37,9 @@ export function registerReplay(program: Command): void {
     });
 }
 
-function parseSpeed(text: string): number | 'max' {
-  if (text === 'max') return 'max';
-  const speed = Number(text);
-  if (!Number.isFinite(speed) || speed <= 0)
-    throw new UsageError(`--speed must be a positive number or max (got "${text}")`);
-  return speed;
-}
-
-function parseInterval(text: string): number {
-  const intervalS = Number(text);
-  if (!Number.isFinite(intervalS) || intervalS <= 0) {
-    throw new UsageError(`--interval must be a positive number of seconds (got "${text}")`);
-  }
-  return intervalS;
-}
-
 async function replay(file: string | undefined, options: ReplayOptions): Promise<void> {
-  const speed = parseSpeed(options.speed);
-  const intervalS = parseInterval(options.interval);
+  const speed = speedOrMax('--speed', options.speed);
+  const intervalS = positiveNumber('--interval', options.interval, 'seconds');
   const explicitProfile = options.profile ? loadProfileFile(options.profile) : null;
   const input = openLineInput(file, { db: options.db, run: options.run, intervalS });
   const profile = explicitProfile ?? input.profile;

@@ -8,6 +8,7 @@ import type { Command } from 'commander';
 import { diagnose } from '@shared/engine/diagnosis';
 import { buildRunReport, collectRun, NoChromiumError, renderReportPdf } from '../report';
 import { UsageError } from './errors';
+import { positiveNumber } from './options';
 import { openLineInput } from './line-input';
 import { loadProfileFile } from './profile-file';
 
@@ -42,10 +43,7 @@ export function registerReport(program: Command): void {
 }
 
 async function runReport(target: string | undefined, options: ReportOptions): Promise<void> {
-  const intervalS = Number(options.interval);
-  if (!Number.isFinite(intervalS) || intervalS <= 0) {
-    throw new UsageError(`--interval must be a positive number of seconds (got "${options.interval}")`);
-  }
+  const intervalS = positiveNumber('--interval', options.interval, 'seconds');
   const profile = options.profile ? loadProfileFile(options.profile) : null;
   let input;
   let source: string;
@@ -86,8 +84,18 @@ async function runReport(target: string | undefined, options: ReportOptions): Pr
     await renderReportPdf(options.out, options.pdf);
     process.stderr.write(`taperline: wrote ${options.pdf}\n`);
   } catch (err) {
-    if (!(err instanceof NoChromiumError)) throw err;
-    process.stderr.write(`taperline: PDF not written: ${err.message}\n`);
+    // Whatever went wrong (no Chromium, an unwritable --pdf path, a page that never finished
+    // drawing), the HTML is already on disk: say so in one line instead of a stack trace.
+    process.stderr.write(`taperline: ${pdfFailureText(err, options.out)}\n`);
     process.exitCode = 1;
   }
+}
+
+/** One line: what failed (first line of the error only) and where the HTML report was kept. */
+function pdfFailureText(err: unknown, htmlPath: string): string {
+  const message = err instanceof Error ? err.message : String(err);
+  const first = message.split('\n')[0].trim() || (err instanceof Error ? err.name : 'unknown error');
+  // A NoChromiumError already says the HTML was kept and what to install.
+  if (err instanceof NoChromiumError) return `PDF not written: ${first}`;
+  return `PDF not written: ${first}; the HTML report was kept at ${htmlPath}`;
 }

@@ -11,6 +11,7 @@ import { realLibraries } from '../app/libraries';
 import { RecorderOpenError } from '../recorder/errors';
 import { startServer } from '../server';
 import { UsageError } from './errors';
+import { portNumber, positiveInteger, positiveNumber } from './options';
 
 /** Default port of `taperline serve` (unassigned by IANA; any free port works with --port). */
 export const DEFAULT_SERVE_PORT = 4870;
@@ -58,20 +59,6 @@ export function registerServe(program: Command): void {
     });
 }
 
-function positiveNumber(text: string, name: string): number {
-  const n = Number(text);
-  if (!Number.isFinite(n) || n <= 0)
-    throw new UsageError(`${name} must be a positive number (got "${text}")`);
-  return n;
-}
-
-function portNumber(text: string): number {
-  const n = Number(text);
-  if (!Number.isInteger(n) || n < 0 || n > 65535)
-    throw new UsageError(`--port must be 0..65535 (got "${text}")`);
-  return n;
-}
-
 export function backendOptionsFrom(options: ServeOptions): BackendOptions {
   const backend: BackendOptions = { dbPath: options.record ? (options.db ?? undefined) : null };
   if (options.speedup !== undefined && !options.simulate)
@@ -83,7 +70,7 @@ export function backendOptionsFrom(options: ServeOptions): BackendOptions {
     }
     backend.simulate = {
       scenario: options.simulate,
-      speedup: options.speedup === undefined ? undefined : positiveNumber(options.speedup, '--speedup'),
+      speedup: options.speedup === undefined ? undefined : positiveNumber('--speedup', options.speedup),
     };
   }
   if (options.stationPort) {
@@ -94,7 +81,7 @@ export function backendOptionsFrom(options: ServeOptions): BackendOptions {
     }
     backend.serial = {
       path: options.stationPort,
-      baudRate: positiveNumber(options.baud, '--baud'),
+      baudRate: positiveInteger('--baud', options.baud, '115200'),
       profilePath: options.profile,
     };
   } else if (options.profile) {
@@ -116,7 +103,7 @@ async function serve(options: ServeOptions): Promise<void> {
     return;
   }
   const backendOptions = backendOptionsFrom(options);
-  const port = portNumber(options.port);
+  const port = portNumber('--port', options.port);
   let backend;
   try {
     backend = await startBackend(backendOptions);

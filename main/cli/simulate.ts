@@ -21,6 +21,7 @@ import {
 } from '../simulator';
 import type { LineSource } from '../sources/types';
 import { UsageError } from './errors';
+import { nonNegativeNumber, positiveNumber, wholeNumber } from './options';
 
 interface SimulateOptions {
   scenario: string;
@@ -68,16 +69,6 @@ export function registerSimulate(program: Command): void {
     });
 }
 
-function positive(name: string, text: string, allowZero = false): number {
-  const value = Number(text);
-  if (!Number.isFinite(value) || value < 0 || (!allowZero && value === 0)) {
-    throw new UsageError(
-      `${name} must be a ${allowZero ? 'non-negative' : 'positive'} number (got "${text}")`,
-    );
-  }
-  return value;
-}
-
 interface Plan {
   scenario: string;
   shape: LineShape;
@@ -95,19 +86,18 @@ function planFrom(o: SimulateOptions): Plan {
   }
   if (!SHAPES.includes(o.shape as LineShape))
     throw new UsageError(`--shape must be one of ${SHAPES.join(', ')} (got "${o.shape}")`);
-  const seed = Number(o.seed);
-  if (!Number.isInteger(seed)) throw new UsageError(`--seed must be a whole number (got "${o.seed}")`);
+  const seed = wholeNumber('--seed', o.seed);
   const targets = [o.out !== undefined, o.pty === true, o.device !== undefined].filter(Boolean).length;
   if (targets > 1) throw new UsageError('choose one of --out, --pty and --device');
   return {
     scenario: o.scenario,
     shape: o.shape as LineShape,
-    sampleIntervalS: positive('--interval', o.interval),
-    durationS: o.duration === undefined ? undefined : positive('--duration', o.duration, true),
+    sampleIntervalS: positiveNumber('--interval', o.interval, 'seconds'),
+    durationS: o.duration === undefined ? undefined : nonNegativeNumber('--duration', o.duration, 'seconds'),
     checksum: o.checksum === true,
     ntc: o.ntc === true ? true : undefined,
     seed,
-    speedup: positive('--speedup', o.speedup),
+    speedup: positiveNumber('--speedup', o.speedup),
   };
 }
 

@@ -60,8 +60,30 @@ export function startBackendProcess(options: BackendProcessOptions): BackendProc
   });
   ready.catch(() => undefined);
 
-  const post = (message: ParentToChild) => {
-    if (!exited && child.connected) child.send(message);
+  /** Every request still waiting is answered with `reason`: no reply can come any more. */
+  const answerPending = (reason: string) => {
+    for (const resolve of pending.values()) resolve({ id: -1, ok: false, error: reason });
+    pending.clear();
+  };
+
+  /** The child is gone (or never started): said once, however many events report it. */
+  let ended = false;
+  const end = (reason: string) => {
+    exited = true;
+    failReady(new Error(reason));
+    answerPending(reason);
+    if (ended) return;
+    ended = true;
+    options.onExit(reason);
+  };
+
+  /** Send to the child; `onFailed` hears why when the message cannot reach it. */
+  const post = (message: ParentToChild, onFailed?: (reason: string) => void) => {
+    if (exited || !child.connected) return onFailed?.(fatal ?? 'the backend is not running');
+    // With a callback a failed send is reported here instead of as the child's 'error' event.
+    child.send(message, (err) => {
+      if (err) onFailed?.(`the backend could not be reached (${err.message})`);
+    });
   };
 
   child.on('message', (message: unknown) => {
@@ -69,16 +91,18 @@ export function startBackendProcess(options: BackendProcessOptions): BackendProc
     void onMessage(message);
   });
   child.on('error', (err) => {
-    fatal ??= `the backend could not start (${err.message}); is Node installed? set ${NODE_ENV_VAR} to its path`;
-    failReady(new Error(fatal));
+    // A failed spawn (no such node) emits 'error' and never 'exit': end here, or requests wait forever.
+    if (child.pid === undefined) {
+      fatal ??= `the backend could not start (${err.message}); is Node installed? set ${NODE_ENV_VAR} to its path`;
+      end(fatal);
+    } else if (!child.connected) {
+      end(fatal ?? `the backend cannot be reached (${err.message})`);
+    }
   });
+  // The channel closed while the process may linger: nothing sent before can be answered now.
+  child.on('disconnect', () => answerPending(fatal ?? 'the backend closed its channel'));
   child.on('exit', (code, signal) => {
-    exited = true;
-    const reason = fatal ?? `the backend stopped (${signal ?? `exit code ${code}`})`;
-    failReady(new Error(reason));
-    for (const resolve of pending.values()) resolve({ id: -1, ok: false, error: reason });
-    pending.clear();
-    options.onExit(reason);
+    end(fatal ?? `the backend stopped (${signal ?? `exit code ${code}`})`);
   });
 
   async function onMessage(message: ChildToParent): Promise<void> {
@@ -123,12 +147,16 @@ export function startBackendProcess(options: BackendProcessOptions): BackendProc
       return child.pid;
     },
     request(envelope) {
-      if (exited)
+      if (exited || !child.connected)
         return Promise.resolve({ id: envelope.id, ok: false, error: fatal ?? 'the backend is not running' });
       const relayId = nextId++;
       return new Promise<ReplyEnvelope>((resolve) => {
         pending.set(relayId, (reply) => resolve({ ...reply, id: envelope.id } as ReplyEnvelope));
-        post({ type: 'request', envelope: { ...envelope, id: relayId } });
+        post({ type: 'request', envelope: { ...envelope, id: relayId } }, (reason) => {
+          const answer = pending.get(relayId);
+          pending.delete(relayId);
+          answer?.({ id: -1, ok: false, error: reason });
+        });
       });
     },
     stop(graceMs = 5000) {

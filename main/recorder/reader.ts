@@ -1,6 +1,7 @@
 /** The read side of a recording database: what the Runs view, replay and diagnose ask. */
 import type Database from 'better-sqlite3';
-import type { Writable } from 'node:stream';
+import { Readable, type Writable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
 import { stringify } from 'csv-stringify';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { SourceKind } from '@shared/telemetry/types';
@@ -148,6 +149,18 @@ export function createRunReader(db: Database.Database): RunReader {
       "SELECT id, rx_s, kind, text, reason, detail, too_long FROM lines WHERE run_id = ? AND id > ? AND kind <> 'sent' ORDER BY id LIMIT 2000",
     ),
   };
+  /** Every sample row of a run, page by page (keyset paging on (t, seq)). */
+  function* samplePages(runId: number): Generator<Array<SampleDbRow & { seq: number }>> {
+    let after = { t: -Infinity, seq: -1 };
+    for (;;) {
+      const page = q.samplePage.all(runId, after.t, after.t, after.seq);
+      if (page.length === 0) return;
+      yield page;
+      const last = page[page.length - 1];
+      after = { t: last.t, seq: last.seq };
+    }
+  }
+
   const deleteRun = db.transaction((runId: number) => {
     for (const table of ['samples', 'events', 'lines', 'rollup'])
       db.prepare(`DELETE FROM ${table} WHERE run_id = ?`).run(runId);
@@ -238,30 +251,24 @@ export function createRunReader(db: Database.Database): RunReader {
         afterId = page[page.length - 1].id;
       }
     },
+    allSamples(runId) {
+      const out: TimedSample[] = [];
+      for (const page of samplePages(runId)) for (const row of page) out.push(toTimedSample(row));
+      return out;
+    },
     async exportCsv(runId, out: Writable) {
       const extraKeys = q.extraKeys.all(runId).map((r) => r.key);
       const header = [...CSV_COLUMNS.map((c) => c.header), ...extraKeys];
-      const csv = stringify({ header: true, columns: header });
-      const done = new Promise<void>((resolve, reject) => {
-        csv.on('error', reject);
-        out.on('error', reject);
-        csv.on('end', resolve);
-      });
-      csv.pipe(out, { end: false });
-      let after = { t: -Infinity, seq: -1 };
-      for (;;) {
-        const page = q.samplePage.all(runId, after.t, after.t, after.seq);
-        if (page.length === 0) break;
-        for (const row of page) {
-          const s = toTimedSample(row);
-          const record = [...CSV_COLUMNS.map((c) => c.pick(s)), ...extraKeys.map((k) => s.extra[k])];
-          if (!csv.write(record)) await new Promise<void>((resolve) => csv.once('drain', resolve));
-        }
-        const last = page[page.length - 1];
-        after = { t: last.t, seq: last.seq };
+      function* records() {
+        for (const page of samplePages(runId))
+          for (const row of page) {
+            const s = toTimedSample(row);
+            yield [...CSV_COLUMNS.map((c) => c.pick(s)), ...extraKeys.map((k) => s.extra[k])];
+          }
       }
-      csv.end();
-      await done;
+      // pipeline carries backpressure and, when `out` errors or closes early (a full disk, an
+      // aborted download), destroys the other streams and rejects instead of waiting forever.
+      await pipeline(Readable.from(records()), stringify({ header: true, columns: header }), out);
     },
   };
 }

@@ -40,8 +40,6 @@ type Op =
 interface LiveRun {
   seq: number;
   rollup: RunRollup;
-  lastRxS: number | null;
-  lastT: number;
 }
 
 /** Open the recording database at `dbPath` (default: the user's data folder). */
@@ -102,8 +100,8 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     reopen: db.prepare(
       'UPDATE runs SET end_rx_s = NULL, end_reason = NULL, writer_pid = ?, writer_host = ? WHERE id = ?',
     ),
-    maxSeq: db.prepare<[number], { seq: number | null; t: number | null }>(
-      'SELECT max(seq) AS seq, max(t) AS t FROM samples WHERE run_id = ?',
+    maxSeq: db.prepare<[number], { seq: number | null }>(
+      'SELECT max(seq) AS seq FROM samples WHERE run_id = ?',
     ),
     openSlots: db.prepare<[number], Record<string, number | null>>(
       'SELECT * FROM rollup WHERE run_id = ? AND idx = (SELECT max(idx) FROM rollup r2 WHERE r2.run_id = rollup.run_id AND r2.level_s = rollup.level_s)',
@@ -307,7 +305,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
   function liveRun(runId: number): LiveRun {
     let run = live.get(runId);
     if (!run) {
-      run = { seq: 0, rollup: new RunRollup(), lastRxS: null, lastT: -Infinity };
+      run = { seq: 0, rollup: new RunRollup() };
       live.set(runId, run);
     }
     return run;
@@ -333,8 +331,6 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
           live.set(prev.id, {
             seq: (m?.seq ?? -1) + 1,
             rollup: new RunRollup(slots),
-            lastRxS: endRx,
-            lastT: m?.t ?? -Infinity,
           });
           return { runId: prev.id, resumed: true, lastRxS: endRx };
         }
@@ -366,7 +362,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
         enqueue({ kind: 'run', params: [runId, ...columns] });
       }
       lastAllocatedId = Math.max(lastAllocatedId, runId);
-      live.set(runId, { seq: 0, rollup: new RunRollup(), lastRxS: null, lastT: -Infinity });
+      live.set(runId, { seq: 0, rollup: new RunRollup() });
       return { runId, resumed: false, lastRxS: null };
     },
     addLine(runId: number, line: StoredLine) {

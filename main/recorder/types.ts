@@ -21,12 +21,18 @@ export interface RunReader {
     toT: number,
     buckets: number,
   ): OverviewBucket[];
+  /** Samples with fromT <= t < toT, at most `limit` (default 100,000): for a window of a run. */
   samples(runId: number, fromT: number, toT: number, limit?: number): TimedSample[];
+  /** Every sample of a run however long, read in pages: for diagnosis and reports. */
+  allSamples(runId: number): TimedSample[];
   events(runId: number): EngineEvent[];
   rawLines(runId: number, afterRxS?: number, limit?: number): FeedLine[];
   /** Every received line of a run in order, as if read again from a file. */
   lineIterator(runId: number): IterableIterator<{ text: string; rxS: number; tooLong?: boolean }>;
-  /** Samples as CSV (units in the headers); `out` is left open for the caller to end. */
+  /**
+   * Samples as CSV (units in the headers) into `out`, which the export ends when done (or
+   * destroys when the export fails). Rejects when `out` errors or closes early.
+   */
   exportCsv(runId: number, out: Writable): Promise<void>;
 }
 

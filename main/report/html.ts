@@ -1,4 +1,5 @@
 /** Small, safe pieces of HTML: escaping, tables, JSON embedded in a script tag. */
+import { formatRunClock, formatSpan } from '@shared/engine/time-format';
 
 export function escapeHtml(text: string): string {
   return text.replace(
@@ -28,17 +29,6 @@ export function table(headers: string[], rows: string[][], caption?: string): st
 }
 
 /** h:mm:ss since the first sample. */
-export function clock(t: number): string {
-  const total = Math.max(0, Math.round(t));
-  const h = Math.floor(total / 3600);
-  const m = Math.floor((total % 3600) / 60);
-  const s = total % 60;
-  return `${h}:${String(m).padStart(2, '0')}:${String(s).padStart(2, '0')}`;
-}
+export const clock = formatRunClock;
 
-export function duration(s: number): string {
-  if (s < 90) return `${Math.round(s)} s`;
-  const min = Math.round(s / 60);
-  if (min < 90) return `${min} min`;
-  return `${Math.floor(min / 60)} h ${String(min % 60).padStart(2, '0')} min`;
-}
+export const duration = formatSpan;

@@ -37,7 +37,7 @@ export function recordedRunReportInput(reader: RunReader, runId: number, source?
   const parsed = parseProfile(reader.profileOf(runId));
   if (!parsed.ok) throw new Error(`the profile recorded with run ${runId} is not valid: ${parsed.error}`);
   const profile = parsed.profile;
-  const samples = reader.samples(runId, 0, Number.MAX_VALUE);
+  const samples = reader.allSamples(runId);
   const events = reader.events(runId);
   const summary: RunSummary = {
     durationS: row.durationS,

@@ -12,6 +12,7 @@ import { WS_PATH } from '@shared/ipc/channels';
 import type { PushEnvelope } from '@shared/ipc/pushes';
 import type { RunReader } from '../recorder/types';
 import { answerText, errorText } from '../app/dispatch';
+import { runFileStem } from '../app/file-names';
 import type { AppService } from '../app/service';
 import {
   createAccessPolicy,
@@ -215,16 +216,16 @@ async function serveRunDownload(
 ): Promise<void> {
   const run = ctx.recorder?.getRun(runId) ?? null;
   if (!ctx.recorder || !run) return sendText(res, 404, `no recorded run ${runId}`);
-  const stem = `taperline-run-${runId}-${run.stationId.replace(/[^A-Za-z0-9._-]/g, '_')}`;
+  const stem = runFileStem(run);
   if (file === 'export.csv') {
     res.writeHead(200, {
       'Content-Type': 'text/csv; charset=utf-8',
       'Content-Disposition': `attachment; filename="${stem}.csv"`,
       'Cache-Control': 'no-store',
     });
-    await ctx.recorder.exportCsv(runId, res);
-    if (!res.writableEnded) res.end();
-    return;
+    // The export ends the response. When the browser aborts the download it rejects (and has
+    // already destroyed the response), so the handler settles instead of waiting for a drain.
+    return ctx.recorder.exportCsv(runId, res);
   }
   if (file === 'report.pdf') {
     if (!ctx.reportPdf) return sendText(res, 404, 'PDF reports are not offered by this server');

@@ -24,6 +24,19 @@ import type {
 
 export const MAX_STATIONS = 16;
 
+/**
+ * A source whose lines carry a recording's clock (a replayed run), not the wall clock. The
+ * silence tick is skipped for it: like `taperline replay`, a hole in its data is a silence of
+ * its own, found when the next line arrives.
+ */
+export interface RecordedClockSource {
+  readonly recordedClock: true;
+}
+
+function hasRecordedClock(source: LineSource): boolean {
+  return (source as Partial<RecordedClockSource>).recordedClock === true;
+}
+
 export interface StationManagerOptions {
   /** Where runs are recorded; null or absent = live only. */
   recorder?: Recorder | null;
@@ -282,7 +295,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     const rxS = now();
     for (const st of stations.values()) {
       guarded(st, 'the silence check', () => {
-        record(st, st.pipeline.tick(rxS));
+        if (!hasRecordedClock(st.source)) record(st, st.pipeline.tick(rxS));
         if (recorder && st.runId !== null) recorder.updateTotals(st.runId, st.pipeline.summary());
       });
     }

@@ -75,7 +75,12 @@ export const requestSchemas = {
   'runs.overview': z
     .object({
       runId,
-      fields: z.array(seriesField).min(1),
+      // At most the five series, each once: a repeated field is dropped, not queried twice.
+      fields: z
+        .array(seriesField)
+        .min(1)
+        .max(5)
+        .transform((fields) => [...new Set(fields)]),
       ...window,
       buckets: z.number().int().min(1).max(10_000),
     })

@@ -9,6 +9,7 @@ import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { parse } from 'csv-parse/sync';
 import { parseProfile } from '@shared/chemistry/profile';
+import { CAUSE_CODES } from '@shared/engine/diagnosis/types';
 import { openBrowser, screenshot, type BrowserSession } from './helpers/browser';
 import { pageUrl, startServe, type ServeHandle } from './helpers/serve';
 import { firstStationId, openViewByKey } from './helpers/page';
@@ -126,19 +127,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     const causes = page.locator('#view-diagnosis .cause');
     for (let i = 0; i < (await causes.count()); i++) {
       const code = await causes.nth(i).getAttribute('data-code');
-      assert.ok(
-        [
-          'damaged-cell',
-          'weak-source',
-          'overtemperature',
-          'thermistor-fault',
-          'timer-expired',
-          'overvoltage',
-          'connection',
-          'unknown',
-        ].includes(code ?? ''),
-        `cause ${code}`,
-      );
+      assert.ok((CAUSE_CODES as readonly string[]).includes(code ?? ''), `cause ${code}`);
       assert.match(
         (await causes.nth(i).locator('.confidence-text').textContent()) ?? '',
         /^\d{1,3} % confidence$/,

@@ -124,6 +124,20 @@ test('a missing file exits 2 with one line on standard error', () => {
   assert.match(r.stderr, /^taperline: no such file: .*nope\.log\n$/);
 });
 
+test('bad numbers for --speed and --interval exit 2 naming the option and the text', () => {
+  const { log } = writeScenario('bench-liion-3s', 60);
+  for (const [args, want] of [
+    [['--speed', 'fast'], /^taperline: --speed must be a positive number or max \(got "fast"\)\n$/],
+    [['--speed', ''], /^taperline: --speed must be a positive number or max \(got ""\)\n$/],
+    [['--interval', '0'], /^taperline: --interval must be a positive number of seconds \(got "0"\)\n$/],
+  ] as const) {
+    const r = taperline(['replay', log, ...args]);
+    assert.equal(r.status, 2, args.join(' '));
+    assert.equal(r.stdout, '');
+    assert.match(r.stderr, want);
+  }
+});
+
 test('a bad profile exits 2 naming the bad key', () => {
   const { log } = writeScenario('bench-liion-3s', 60);
   const badProfile = join(dir, 'bad.json');

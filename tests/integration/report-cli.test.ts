@@ -96,6 +96,40 @@ test('report and diagnose on a telemetry file and on standard input', (t) => {
   const missing = cli(['report', join(dir, 'nope.txt'), '--out', out]);
   assert.equal(missing.status, 2);
   assert.match(missing.stderr, /no such file/);
+  const badInterval = cli(['report', file, '--profile', profile, '--out', out, '--interval', 'abc']);
+  assert.equal(badInterval.status, 2);
+  assert.match(
+    badInterval.stderr,
+    /^taperline: --interval must be a positive number of seconds \(got "abc"\)\n$/,
+  );
+});
+
+test('a PDF that cannot be written is one line naming where the HTML report was kept, exit 1', (t) => {
+  if (!existsSync('/usr/bin/chromium')) {
+    t.skip('no /usr/bin/chromium: the PDF is never attempted');
+    return;
+  }
+  const dir = tempDir(t);
+  const file = join(dir, 'loose.csv');
+  writeFileSync(
+    file,
+    [...simulatedLines('loose-connection', { shape: 'csv', sampleIntervalS: 2, seed: 5 })].join('\n') + '\n',
+  );
+  const profile = join(dir, 'profile.json');
+  writeFileSync(profile, JSON.stringify(getScenario('loose-connection').profile));
+  // A plain file where the PDF's folder should be: Chromium prints, the write fails (ENOTDIR).
+  const blocker = join(dir, 'not-a-folder');
+  writeFileSync(blocker, 'a file, not a folder');
+  const html = join(dir, 'kept.html');
+  const r = cli(['report', file, '--profile', profile, '--out', html, '--pdf', join(blocker, 'run.pdf')]);
+  assert.equal(r.status, 1, r.stderr);
+  const lines = r.stderr.trim().split('\n');
+  assert.match(lines[0], /^taperline: wrote .*kept\.html \(\d+ samples, \d+ events\)$/);
+  assert.equal(lines.length, 2, `one line for the failure, no stack trace: ${r.stderr}`);
+  assert.match(lines[1], /^taperline: PDF not written: \S/);
+  assert.ok(lines[1].endsWith(`; the HTML report was kept at ${html}`), lines[1]);
+  assertReport(html, 'connection');
+  assert.ok(!existsSync(join(blocker, 'run.pdf')));
 });
 
 test('diagnose and report a run recorded in a SQLite file', (t) => {

@@ -6,7 +6,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { SerialPort } from 'serialport';
@@ -49,6 +49,8 @@ async function writeLines(path: string, lines: string[]): Promise<void> {
 
 // Invented: a fence monitor's 2S Li-ion pack in CC (PROTOCOL section 1 key=value shape).
 const PROFILE = { name: 'fence monitor 2S', chemistry: 'li-ion', cells: 2, capacityAh: 3, chargeCurrentA: 1 };
+const manyPorts = (n: number) =>
+  Array.from({ length: n }, (_, i) => ['--port', join(tmpdir(), `taperline-no-port-${i}`)]).flat();
 const LINES = ['t=0 vbat=7.400 ibat=1.000 temp=25.0', 't=1 vbat=7.401 ibat=1.000 temp=25.1'];
 
 test('without a terminal: plain status lines every --status-every seconds; SIGTERM closes the run as stopped', async () => {
@@ -178,6 +180,21 @@ test('usage errors are one line on standard error with exit status 2', async () 
         ['record', '--port', join(dir, 'p'), '--profile', join(dir, 'missing.json')],
         /^taperline: no such profile file: /,
       ],
+      // Blank text used to be read as 0 seconds.
+      [
+        ['record', '--port', join(dir, 'p'), '--status-every', ''],
+        /^taperline: --status-every must be a non-negative number of seconds \(got ""\)$/m,
+      ],
+      [
+        ['record', '--port', join(dir, 'p'), '--resume-within', 'soon'],
+        /^taperline: --resume-within must be a non-negative number of seconds \(got "soon"\)$/m,
+      ],
+      // One more port than a station manager holds (MAX_STATIONS = 16): refused before any port
+      // opens or any run starts, so nothing is left open.
+      [
+        ['record', '--db', join(dir, 'many.sqlite'), ...manyPorts(17)],
+        /^taperline: at most 16 stations can record at once \(got 17 --port paths\); nothing was recorded/,
+      ],
     ];
     for (const [args, want] of cases) {
       const r = run(args);
@@ -185,6 +202,7 @@ test('usage errors are one line on standard error with exit status 2', async () 
       assert.match(r.out(), want);
       assert.equal(r.out().trim().split('\n').length, 1, r.out());
     }
+    assert.ok(!existsSync(join(dir, 'many.sqlite')), 'no database was opened for a refused port list');
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }

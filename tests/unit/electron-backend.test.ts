@@ -5,7 +5,7 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { PushEnvelope } from '@shared/ipc/pushes';
@@ -146,3 +146,87 @@ test('a backend that cannot start says why', { timeout: 60_000 }, async () => {
   });
   await assert.rejects(missingNode.ready, /TAPERLINE_NODE/);
 });
+
+test(
+  'a request sent while the backend fails to start is answered, not left waiting',
+  { timeout: 30_000 },
+  async () => {
+    const exits: string[] = [];
+    const backend = startBackendProcess({
+      cliPath: join(root, 'main/cli/main.ts'),
+      nodePath: '/nonexistent/node',
+      serveArgs: [],
+      onPush: () => undefined,
+      choosePath: async () => null,
+      printPdf: async () => undefined,
+      onExit: (reason) => exits.push(reason),
+    });
+    // Sent before the spawn error is known: Node emits 'error' for a missing executable and never 'exit'.
+    const early = await backend.request({ id: 5, method: 'stations.list', params: {} });
+    assert.equal(early.id, 5);
+    assert.match(!early.ok ? early.error : '', /could not start.*TAPERLINE_NODE/);
+    const late = await backend.request({ id: 6, method: 'stations.list', params: {} });
+    assert.match(!late.ok ? late.error : '', /TAPERLINE_NODE/);
+    await assert.rejects(backend.ready, /TAPERLINE_NODE/);
+    await backend.stop();
+    assert.equal(exits.length, 1, 'the end is reported once');
+  },
+);
+
+/** A stand-in backend (plain Node, no Taperline code) that misbehaves on its first request. */
+function misbehavingChild(dir: string): string {
+  const path = join(dir, 'child.cjs');
+  writeFileSync(
+    path,
+    [
+      'const how = process.argv[process.argv.length - 1];',
+      'const keepAlive = setInterval(() => undefined, 1000);',
+      "process.on('message', (m) => {",
+      "  if (m.type !== 'request') return;",
+      "  if (how === 'exit') process.exit(3);",
+      '  process.disconnect();',
+      '});',
+      "process.on('disconnect', () => setTimeout(() => clearInterval(keepAlive), 20_000).unref());",
+      '',
+    ].join('\n'),
+  );
+  return path;
+}
+
+for (const how of ['exit', 'disconnect'] as const) {
+  test(
+    `a backend that ${how === 'exit' ? 'exits' : 'closes its channel'} while asked answers the request`,
+    { timeout: 30_000 },
+    async () => {
+      const dir = mkdtempSync(join(tmpdir(), 'taperline-child-'));
+      const exits: string[] = [];
+      const backend = startBackendProcess({
+        cliPath: misbehavingChild(dir),
+        nodePath: process.execPath,
+        serveArgs: [how],
+        onPush: () => undefined,
+        choosePath: async () => null,
+        printPdf: async () => undefined,
+        onExit: (reason) => exits.push(reason),
+      });
+      try {
+        const reply = await backend.request({ id: 9, method: 'stations.list', params: {} });
+        assert.equal(reply.id, 9);
+        assert.equal(reply.ok, false);
+        if (how === 'exit')
+          assert.match(!reply.ok ? reply.error : '', /the backend stopped|closed its channel/);
+        else assert.match(!reply.ok ? reply.error : '', /closed its channel/);
+        // With the channel gone, a new request is answered at once instead of being queued.
+        const after = await backend.request({ id: 10, method: 'stations.list', params: {} });
+        assert.deepEqual(after, { id: 10, ok: false, error: 'the backend is not running' });
+      } finally {
+        // The lingering child ignores 'stop' (no channel): stop() kills it after the grace time.
+        await backend.stop(200);
+        rmSync(dir, { recursive: true, force: true });
+      }
+      assert.equal(exits.length, 1);
+      if (how === 'exit') assert.match(exits[0], /exit code 3/);
+      else assert.match(exits[0], /SIGKILL/);
+    },
+  );
+}

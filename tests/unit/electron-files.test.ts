@@ -7,6 +7,8 @@ import assert from 'node:assert/strict';
 import { mkdirSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { runFileStem } from '../../main/app/file-names';
+import { createAppService } from '../../main/app/service';
 import { answerAppRequest } from '../../main/electron/protocol';
 import {
   DEFAULT_BOUNDS,
@@ -14,6 +16,8 @@ import {
   saveWindowState,
   windowStatePath,
 } from '../../main/electron/window-state';
+import { openRecorder } from '../../main/recorder';
+import { createStationManager } from '../../main/station';
 
 const dir = mkdtempSync(join(tmpdir(), 'taperline-electron-'));
 const rendererDir = join(dir, 'renderer');
@@ -71,4 +75,52 @@ test('the window state is remembered, and ignored when damaged or off every disp
   saveWindowState(path, { width: 200, height: 100, maximized: false });
   assert.deepEqual(loadWindowState(path, displays), { width: 900, height: 600, maximized: false });
   assert.doesNotThrow(() => JSON.parse(readFileSync(path, 'utf8')));
+});
+
+test('the save dialog proposes a plain file name for a run recorded from a port path', async () => {
+  const recorder = openRecorder(join(dir, 'names.sqlite'));
+  const stations = createStationManager();
+  const asked: string[] = [];
+  const service = createAppService({
+    stations,
+    recorder,
+    exportMode: {
+      kind: 'save',
+      choosePath: async (suggestedName) => {
+        asked.push(suggestedName);
+        return null;
+      },
+    },
+    writeCsvFile: async () => undefined,
+    writeReportFile: async () => undefined,
+  });
+  try {
+    // `taperline record --port /dev/ttyUSB0` names its station after the port.
+    const { runId } = recorder.startRun({
+      stationId: 'serial:/dev/ttyUSB0',
+      stationLabel: '/dev/ttyUSB0',
+      profileName: 'weather station 1S LiFePO4 (invented demo)',
+      chemistry: 'lifepo4',
+      profileJson: { chemistry: 'lifepo4', cells: 1 },
+      startRxS: 1_800_000_000,
+    });
+    assert.deepEqual(await service.handle('runs.exportCsv', { runId }), { cancelled: true });
+    assert.deepEqual(await service.handle('runs.report', { runId, pdf: true }), { cancelled: true });
+    assert.deepEqual(asked, [
+      `taperline-run-${runId}-serial__dev_ttyUSB0.csv`,
+      `taperline-run-${runId}-serial__dev_ttyUSB0.pdf`,
+    ]);
+  } finally {
+    service.close();
+    await stations.close();
+    recorder.close();
+  }
+  // The same stem the HTTP download names its files with; nothing a path or a header could misread.
+  assert.equal(runFileStem({ id: 3, stationId: 'bench-1' }), 'taperline-run-3-bench-1');
+  assert.equal(runFileStem({ id: 4, stationId: 'C:\\ports\\"COM3"' }), 'taperline-run-4-C__ports__COM3_');
+  assert.equal(runFileStem({ id: 5, stationId: '' }), 'taperline-run-5');
+  assert.equal(
+    runFileStem({ id: 6, stationId: `serial:${'/x'.repeat(100)}` }).length,
+    'taperline-run-6-'.length + 64,
+  );
 });

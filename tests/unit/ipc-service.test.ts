@@ -6,6 +6,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import type { TimedSample } from '@shared/engine/types';
 import type { PushEnvelope, SampleBatch } from '@shared/ipc/pushes';
+import { validateRequest } from '@shared/ipc/requests';
 import { AckBook } from '../../main/app/acks';
 import { answerRequest, answerText } from '../../main/app/dispatch';
 import { StationHistory } from '../../main/app/history';
@@ -145,6 +146,33 @@ test('profile.preview reads draft lines through the real pipeline', async () => 
     assert.equal(refused.profile.key, 'chemistry');
     const scenarios = (await service.handle('scenarios.list', {})) as { name: string }[];
     assert.ok(scenarios.some((s) => s.name === 'bench-liion-3s'));
+  } finally {
+    service.close();
+    await stations.close();
+  }
+});
+
+test('runs.overview takes each of the five series at most once', async () => {
+  const overview = (fields: string[]) => ({
+    id: 7,
+    method: 'runs.overview',
+    params: { runId: 1, fields, fromT: 0, toT: 60, buckets: 10 },
+  });
+  const repeated = validateRequest(overview(['vbatV', 'ibatA', 'vbatV', 'vbatV']));
+  assert.equal(repeated.ok, true);
+  assert.deepEqual((repeated as { params: { fields: string[] } }).params.fields, ['vbatV', 'ibatA']);
+  const all = ['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA'];
+  assert.equal(validateRequest(overview(all)).ok, true);
+  const tooMany = validateRequest(overview([...all, 'vbatV']));
+  assert.match(!tooMany.ok ? tooMany.error : '', /runs\.overview: fields/);
+  // The service validates again; a long list of one field is refused there too.
+  const stations = createStationManager();
+  const service = createAppService({ stations, recorder: null });
+  try {
+    await assert.rejects(
+      service.handle('runs.overview', overview(Array(1000).fill('vbatV')).params),
+      /runs\.overview: fields/,
+    );
   } finally {
     service.close();
     await stations.close();

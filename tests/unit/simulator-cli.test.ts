@@ -41,6 +41,10 @@ test('usage errors are one line on standard error and exit 2', () => {
     [['--shape', 'xml'], /^taperline: --shape must be one of kv, csv, json/],
     [['--interval', '-2'], /^taperline: --interval must be a positive number/],
     [['--seed', 'abc'], /^taperline: --seed must be a whole number/],
+    // Every numeric option is read by main/cli/options.ts: blank text is refused, not read as 0.
+    [['--interval', ''], /^taperline: --interval must be a positive number of seconds \(got ""\)$/m],
+    [['--speedup', '0'], /^taperline: --speedup must be a positive number \(got "0"\)$/m],
+    [['--duration', '-5'], /^taperline: --duration must be a non-negative number of seconds \(got "-5"\)$/m],
     [['--out', 'a.txt', '--pty'], /^taperline: choose one of --out, --pty and --device/],
   ] as const) {
     const r = cli(...args);

@@ -4,14 +4,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 
-export const CHROMIUM_PATH = '/usr/bin/chromium';
-export const CHROMIUM_ARGS = [
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
+import { CHROMIUM_ARGS, findChromium } from '../../../main/report/pdf';
+
+/** The same Chromium and flags the report printer uses (Debian's chromium on these machines). */
+export const CHROMIUM_PATH = findChromium() ?? '/usr/bin/chromium';
+export { CHROMIUM_ARGS };
 
 export interface BrowserSession {
   context: BrowserContext;
