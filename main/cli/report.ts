@@ -5,8 +5,7 @@
 import { writeFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
-import { diagnose } from '@shared/engine/diagnosis';
-import { buildRunReport, collectRun, NoChromiumError, renderReportPdf } from '../report';
+import { buildRunReport, collectRun, NoChromiumError, renderReportPdf, reportInputOf } from '../report';
 import { UsageError } from './errors';
 import { positiveNumber } from './options';
 import { openLineInput } from './line-input';
@@ -62,15 +61,7 @@ async function runReport(target: string | undefined, options: ReportOptions): Pr
   }
   const run = await collectRun(input, profile);
   if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
-  const html = buildRunReport({
-    profile: run.profile,
-    samples: run.samples,
-    events: run.events,
-    summary: run.summary,
-    diagnosis: diagnose({ profile: run.profile, samples: run.samples, events: run.events }),
-    title: `Run report: ${run.profile.name}`,
-    source,
-  });
+  const html = buildRunReport(reportInputOf(run, `Run report: ${run.profile.name}`, source));
   try {
     writeFileSync(options.out, html);
   } catch (err) {

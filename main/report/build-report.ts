@@ -4,7 +4,7 @@
  */
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { Diagnosis } from '@shared/engine/diagnosis';
-import type { EngineEvent, RunSummary, TimedSample } from '@shared/engine/types';
+import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 import { chartJsSource, taperlineVersion } from './assets';
 import { REPORT_CHART_SCRIPT } from './chart-script';
 import { decimateColumns, seriesColumns } from './decimate';
@@ -28,7 +28,10 @@ export interface RunReportInput {
   profile: ResolvedProfile;
   samples: readonly TimedSample[];
   events: readonly EngineEvent[];
+  /** The pipeline's summary at the end of the run. */
   summary: RunSummary;
+  /** The engine's metrics at the end of the run (`pipeline.state().metrics`). */
+  metrics: RunMetrics;
   diagnosis: Diagnosis;
   title?: string;
   /** Where the run came from, e.g. a file name or `run 3 of bench.sqlite`. */
@@ -67,7 +70,7 @@ export function buildRunReportHtml(input: RunReportInput): string {
   const startT = samples.length ? samples[0].t : 0;
   const endT = Math.max(samples.length ? samples[samples.length - 1].t : 0, startT);
   const segments = phaseSegments(events, endT);
-  const metrics = reportMetrics(profile, samples, summary);
+  const metrics = reportMetrics(samples, summary, input.metrics);
   const gaps = gapRows(profile, samples, events);
   const breakS = Math.max(profile.silenceS, 10);
   const line = (pick: (s: TimedSample) => number | undefined) =>

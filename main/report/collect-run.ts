@@ -1,18 +1,25 @@
 /**
  * Runs a line input (telemetry file, standard input or a recorded run) through the one
- * pipeline and keeps everything diagnose and the Run report need: samples, events, summary.
+ * pipeline and keeps everything diagnose and the Run report need: samples, events, and the
+ * engine's own summary and metrics at the end (the figures the dashboard showed).
  */
 import type { ResolvedProfile } from '@shared/chemistry/types';
-import type { EngineEvent, RunSummary, TimedSample } from '@shared/engine/types';
+import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 import type { RejectReason } from '@shared/telemetry/types';
 import type { LineInput } from '../cli/line-input';
 import { ProfiledRun } from '../cli/profiled-run';
 
-export interface CollectedRun {
+/** What a Run report is made of: the run's data and the engine's figures at its end. */
+export interface EngineRun {
   profile: ResolvedProfile;
   samples: TimedSample[];
   events: EngineEvent[];
   summary: RunSummary;
+  /** The engine's metrics after the last sample: source Wh, efficiency, internal resistance… */
+  metrics: RunMetrics;
+}
+
+export interface CollectedRun extends EngineRun {
   rejectCounts: Partial<Record<RejectReason, number>>;
   /** Set when no profile was given or recorded and one was assumed from the first pack voltage. */
   assumedProfileNote: string | null;
@@ -42,6 +49,7 @@ export class RunCollector {
       samples: this.samples,
       events: this.events,
       summary: pipeline.summary(),
+      metrics: pipeline.state().metrics,
       rejectCounts: pipeline.rejectCounts(),
       assumedProfileNote: this.run.note,
     };

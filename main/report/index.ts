@@ -4,17 +4,19 @@
  */
 import { parseProfile } from '@shared/chemistry/profile';
 import { diagnose } from '@shared/engine/diagnosis';
-import type { EngineEvent, Phase, RunSummary } from '@shared/engine/types';
 import type { RunReader } from '../recorder/types';
 import { buildRunReportHtml, type RunReportInput } from './build-report';
+import type { EngineRun } from './collect-run';
+import { readRecordedRun } from './recorded-run';
 
 export { renderReportPdf, findChromium, NoChromiumError, CHROMIUM_ARGS } from './pdf';
-export { collectRun, RunCollector, type CollectedRun } from './collect-run';
+export { collectRun, RunCollector, type CollectedRun, type EngineRun } from './collect-run';
+export { readRecordedRun } from './recorded-run';
 export type { RunReportInput } from './build-report';
 
 /**
  * One self-contained HTML file for a run. Given a RunReader and a run id instead, reads the
- * recorded run (its profile, samples and events) and resolves to the same HTML.
+ * recorded run (its profile, samples and events, with the engine's figures) and resolves to the same HTML.
  */
 export function buildRunReport(input: RunReportInput): string;
 export function buildRunReport(reader: RunReader, runId: number): Promise<string>;
@@ -30,42 +32,36 @@ function isRunReader(x: RunReportInput | RunReader): x is RunReader {
   return typeof (x as RunReader).profileOf === 'function';
 }
 
-/** The report input of a recorded run, with its diagnosis. Throws when the run or its profile is missing. */
+/**
+ * The report input of a run with the engine's figures, and its diagnosis: the one place both
+ * report paths (a file on the command line, a recorded run in the app) turn a run into a report.
+ */
+export function reportInputOf(run: EngineRun, title: string, source: string): RunReportInput {
+  const { profile, samples, events } = run;
+  return {
+    profile,
+    samples,
+    events,
+    summary: run.summary,
+    metrics: run.metrics,
+    diagnosis: diagnose({ profile, samples, events }),
+    title,
+    source,
+  };
+}
+
+/**
+ * The report input of a recorded run, with the profile it was recorded with (see
+ * `readRecordedRun`). Throws when the run or its profile is missing.
+ */
 export function recordedRunReportInput(reader: RunReader, runId: number, source?: string): RunReportInput {
   const row = reader.getRun(runId);
   if (!row) throw new Error(`run ${runId} is not in the recording database`);
   const parsed = parseProfile(reader.profileOf(runId));
   if (!parsed.ok) throw new Error(`the profile recorded with run ${runId} is not valid: ${parsed.error}`);
-  const profile = parsed.profile;
-  const samples = reader.allSamples(runId);
-  const events = reader.events(runId);
-  const summary: RunSummary = {
-    durationS: row.durationS,
-    ah: row.ah,
-    wh: row.wh,
-    phaseS: phaseSecondsOf(events, samples.length ? samples[samples.length - 1].t : row.durationS),
-    lines: row.lines,
-    rejected: row.rejected,
-  };
-  return {
-    profile,
-    samples,
-    events,
-    summary,
-    diagnosis: diagnose({ profile, samples, events }),
-    title: `Run ${runId}: ${row.stationLabel || row.stationId} · ${row.profileName}`,
-    source: source ?? `recorded run ${runId} (station ${row.stationId})`,
-  };
-}
-
-function phaseSecondsOf(events: readonly EngineEvent[], endT: number): Partial<Record<Phase, number>> {
-  const out: Partial<Record<Phase, number>> = {};
-  let current: { phase: Phase; t: number } | null = null;
-  for (const e of events) {
-    if (e.type !== 'phase') continue;
-    if (current) out[current.phase] = (out[current.phase] ?? 0) + (e.t - current.t);
-    current = { phase: e.phase, t: e.t };
-  }
-  if (current && endT > current.t) out[current.phase] = (out[current.phase] ?? 0) + (endT - current.t);
-  return out;
+  return reportInputOf(
+    readRecordedRun(reader, runId, parsed.profile),
+    `Run ${runId}: ${row.stationLabel || row.stationId} · ${row.profileName}`,
+    source ?? `recorded run ${runId} (station ${row.stationId})`,
+  );
 }

@@ -1,7 +1,6 @@
-/** Figures the Run report prints that the run summary does not carry. */
+/** The Run report's figures: the engine's metrics plus what only the samples show. */
 import type { ResolvedProfile } from '@shared/chemistry/types';
-import { estimateInternalResistance } from '@shared/engine/diagnosis';
-import type { EngineEvent, Phase, RunSummary, TimedSample } from '@shared/engine/types';
+import type { EngineEvent, Phase, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 
 export interface PhaseSegment {
   phase: Phase;
@@ -15,13 +14,16 @@ export interface GapRow {
   reason: string;
 }
 
+/**
+ * The Metrics section's figures. Charge, energy, source energy, efficiency, internal resistance
+ * and time per phase are the engine's own (what the dashboard showed); only the extremes the
+ * engine does not track are taken from the samples here.
+ */
 export interface ReportMetrics {
   durationS: number;
   ah: number;
   wh: number;
-  /** Energy drawn from the source over the intervals where vin and iin are both known. */
   sourceWh: number | null;
-  /** Pack energy / source energy over those same intervals, 0..1. */
   efficiency: number | null;
   internalResistanceOhm: number | null;
   peakTempC: number | null;
@@ -42,41 +44,25 @@ export function phaseSegments(events: readonly EngineEvent[], endT: number): Pha
 }
 
 export function reportMetrics(
-  profile: ResolvedProfile,
   samples: readonly TimedSample[],
   summary: RunSummary,
+  metrics: RunMetrics,
 ): ReportMetrics {
-  let sourceJ = 0;
-  let packJ = 0;
-  let bothS = 0;
   let peakTempC = -Infinity;
   let maxVbatV = -Infinity;
   let minVinV = Infinity;
-  for (let i = 0; i < samples.length; i++) {
-    const s = samples[i];
+  for (const s of samples) {
     if (s.tempC !== undefined && Number.isFinite(s.tempC) && s.tempC > peakTempC) peakTempC = s.tempC;
     if (s.vbatV !== undefined && s.vbatV > maxVbatV) maxVbatV = s.vbatV;
     if (s.vinV !== undefined && s.vinV < minVinV) minVinV = s.vinV;
-    if (i === 0) continue;
-    const p = samples[i - 1];
-    const dt = s.t - p.t;
-    if (dt <= 0 || dt > Math.max(10, profile.silenceS)) continue;
-    if (s.vinV === undefined || s.iinA === undefined || p.vinV === undefined || p.iinA === undefined)
-      continue;
-    if (s.vbatV === undefined || s.ibatA === undefined || p.vbatV === undefined || p.ibatA === undefined)
-      continue;
-    sourceJ += ((p.vinV * p.iinA + s.vinV * s.iinA) / 2) * dt;
-    packJ += ((p.vbatV * p.ibatA + s.vbatV * s.ibatA) / 2) * dt;
-    bothS += dt;
   }
-  const sourceWh = bothS > 0 ? sourceJ / 3600 : null;
   return {
     durationS: summary.durationS,
     ah: summary.ah,
     wh: summary.wh,
-    sourceWh,
-    efficiency: sourceWh !== null && sourceJ > 0 ? packJ / sourceJ : null,
-    internalResistanceOhm: estimateInternalResistance(profile, samples),
+    sourceWh: metrics.sourceWh,
+    efficiency: metrics.efficiency,
+    internalResistanceOhm: metrics.internalResistanceOhm,
     peakTempC: Number.isFinite(peakTempC) ? peakTempC : null,
     maxVbatV: Number.isFinite(maxVbatV) ? maxVbatV : null,
     minVinV: Number.isFinite(minVinV) ? minVinV : null,

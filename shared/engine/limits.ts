@@ -58,6 +58,15 @@ export interface EngineLimits {
   irMaxDtS: number;
 }
 
+/**
+ * Smallest current change between adjacent samples that counts as a step for internal
+ * resistance (R = ΔV/ΔI): a fifth of the set current, at least 50 mA, so the step stands out of
+ * sense-amplifier noise (common practice). The engine and the diagnosis both use this one rule.
+ */
+export function resistanceStepA(p: ResolvedProfile): number {
+  return Math.max(0.05, 0.2 * p.chargeCurrentA);
+}
+
 export function deriveLimits(p: ResolvedProfile): EngineLimits {
   const c = p.capacityAh;
   const hasCv = chemistryHasCv(p.chemistry);
@@ -115,7 +124,7 @@ export function deriveLimits(p: ResolvedProfile): EngineLimits {
     dTdtCPerMin: p.dTdtCPerMin,
     // −ΔV is masked for an initial delay of up to ~10 min: Panasonic NiMH charge methods (published).
     nimhMaskS: 600,
-    irStepA: Math.max(0.05, 0.2 * p.chargeCurrentA),
+    irStepA: resistanceStepA(p),
     irMaxDtS: 5,
   };
 }

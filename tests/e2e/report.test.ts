@@ -11,9 +11,8 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { parseProfile } from '@shared/chemistry/profile';
-import { diagnose } from '@shared/engine/diagnosis';
 import { getScenario, simulatedLines } from '../../main/simulator';
-import { buildRunReport, CHROMIUM_ARGS, renderReportPdf } from '../../main/report';
+import { buildRunReport, CHROMIUM_ARGS, renderReportPdf, reportInputOf } from '../../main/report';
 import { RunCollector } from '../../main/report/collect-run';
 
 const CHROMIUM = '/usr/bin/chromium';
@@ -40,15 +39,9 @@ function reportHtml(): string {
   for (const line of simulatedLines(scenario.name, { shape: 'kv', sampleIntervalS: 1, seed: 3 }))
     collector.push(line, rxS++, false);
   const run = collector.finish();
-  return buildRunReport({
-    profile: run.profile,
-    samples: run.samples,
-    events: run.events,
-    summary: run.summary,
-    diagnosis: diagnose({ profile: run.profile, samples: run.samples, events: run.events }),
-    title: 'Run report: fence-monitor 4S LiFePO4 (demo)',
-    source: 'simulator weak-panel-timer',
-  });
+  return buildRunReport(
+    reportInputOf(run, 'Run report: fence-monitor 4S LiFePO4 (demo)', 'simulator weak-panel-timer'),
+  );
 }
 
 test(

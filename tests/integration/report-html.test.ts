@@ -10,8 +10,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProfile, profileFromChemistry } from '@shared/chemistry/profile';
 import { diagnose } from '@shared/engine/diagnosis';
+import type { ResolvedProfile } from '@shared/chemistry/types';
 import { createPipeline } from '@shared/engine/pipeline';
-import type { EngineEvent, TimedSample } from '@shared/engine/types';
+import { createRunEngine } from '@shared/engine/run-engine';
+import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 import { getScenario, simulatedLines } from '../../main/simulator';
 import { openRecorder, openRunReader } from '../../main/recorder';
 import { buildRunReport, NoChromiumError, renderReportPdf } from '../../main/report';
@@ -38,6 +40,19 @@ function scenarioRun(name: string) {
   for (const line of simulatedLines(name, { shape: 'kv', sampleIntervalS: 1, seed: 5 }))
     collector.push(line, rxS++, false);
   return collector.finish();
+}
+
+/** The engine's summary and metrics for hand-made samples, as a pipeline would give them. */
+function engineFigures(
+  profile: ResolvedProfile,
+  samples: readonly TimedSample[],
+): { summary: RunSummary; metrics: RunMetrics } {
+  const engine = createRunEngine(profile);
+  for (const s of samples) engine.push(s);
+  return {
+    summary: { ...engine.summary(), lines: samples.length, rejected: 0 },
+    metrics: engine.state().metrics,
+  };
 }
 
 function embeddedData(html: string): {
@@ -96,7 +111,7 @@ test('a 7-day 1 Hz run is thinned to a few thousand points per series', (t) => {
     profile,
     samples,
     events,
-    summary: { durationS: n - 1, ah: 1, wh: 13, phaseS: { done: n - 1 }, lines: n, rejected: 0 },
+    ...engineFigures(profile, samples),
     diagnosis: diagnose({ profile, samples, events }),
   });
   t.diagnostic(
@@ -120,7 +135,7 @@ test('text from the profile and the alarms is escaped', () => {
     profile: named,
     samples,
     events,
-    summary: { durationS: 2, ah: 0, wh: 0, phaseS: { cc: 2 }, lines: 3, rejected: 0 },
+    ...engineFigures(named, samples),
     diagnosis: diagnose({ profile: named, samples, events }),
   });
   assert.ok(!html.includes('<img src=x'), 'profile name escaped');

@@ -17,7 +17,7 @@ import { CAUSE_CODES, type Cause, type Diagnosis, type DiagnosisInput } from './
 export type { Cause, CauseCode, Diagnosis, DiagnosisInput } from './types';
 export { CAUSE_CODES } from './types';
 export { findFirstFault } from './context';
-export { deliveredAh, estimateInternalResistance, expectedPackResistance } from './measures';
+export { deliveredAh, expectedPackResistance } from './measures';
 
 const CAUSE_MODULES: readonly ((ctx: DiagnosisContext) => Cause)[] = [
   scoreDamagedCell,

@@ -1,8 +1,9 @@
 /**
- * Measurements taken from a sample history that several cause modules (and the Run report)
- * need: delivered charge, internal resistance from current steps, expected resistance.
+ * Measurements taken from a sample history that several cause modules need: delivered charge,
+ * internal resistance from current steps (with the engine's step threshold), expected resistance.
  */
 import type { Chemistry, ResolvedProfile } from '../../chemistry/types';
+import { resistanceStepA } from '../limits';
 import type { TimedSample } from '../types';
 
 /** Charge into the pack over samples [0, end), trapezoid rule; intervals longer than `maxDtS` are skipped (gaps). */
@@ -31,6 +32,9 @@ export interface ResistanceStep {
 /**
  * Whole-pack resistance from sudden current steps: R = ΔV / ΔI between neighbouring samples.
  * Over one interval the open-circuit voltage barely moves, so the step is the ohmic drop.
+ * Every step of the history is returned: the engine keeps only its last 9 (a live figure that
+ * follows the pack), but a diagnosis judges the whole history before a fault, takes the median
+ * over all of it (one late odd step must not decide) and compares early with late steps.
  */
 export function resistanceSteps(
   samples: readonly TimedSample[],
@@ -62,18 +66,8 @@ export function median(values: readonly number[]): number | null {
   return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
 }
 
-/** Median whole-pack resistance from current steps, or null when the run had no clear step. */
-export function estimateInternalResistance(
-  profile: ResolvedProfile,
-  samples: readonly TimedSample[],
-): number | null {
-  const steps = resistanceSteps(samples, samples.length, minResistanceStepA(profile), 5);
-  return median(steps.map((s) => s.ohm));
-}
-
-/** A step must be a quarter of the set current to stand out of measurement noise. */
-export const minResistanceStepA = (profile: ResolvedProfile): number =>
-  Math.max(0.05, 0.25 * profile.chargeCurrentA);
+/** The engine's own step threshold (`resistanceStepA` in limits.ts), so both count the same steps. */
+export const minResistanceStepA = (profile: ResolvedProfile): number => resistanceStepA(profile);
 
 /**
  * Resistance × capacity of one healthy cell (Ω·Ah): DC resistance scales roughly inversely with
