@@ -13,7 +13,11 @@ function parseRunSelector(run: string): number | 'latest' {
   return id;
 }
 
-export function openRecordedRun(dbPath: string, run: string): LineInput {
+/** Opens a recording database and finds the run; every failure is one line naming the file. */
+export function openRecordedReader(
+  dbPath: string,
+  run: string,
+): { reader: ReturnType<typeof openRunReader>; runId: number } {
   if (!existsSync(dbPath)) throw new UsageError(`no such database: ${dbPath}`);
   const selector = parseRunSelector(run);
   let reader: ReturnType<typeof openRunReader>;
@@ -31,6 +35,11 @@ export function openRecordedRun(dbPath: string, run: string): LineInput {
       selector === 'latest' ? `${dbPath} holds no runs` : `${dbPath} has no run ${selector}`,
     );
   }
+  return { reader, runId };
+}
+
+export function openRecordedRun(dbPath: string, run: string): LineInput {
+  const { reader, runId } = openRecordedReader(dbPath, run);
   let profile: ReturnType<typeof resolveProfileJson>;
   try {
     profile = resolveProfileJson(reader.profileOf(runId), `the profile recorded with run ${runId}`);

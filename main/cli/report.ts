@@ -5,11 +5,20 @@
 import { writeFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
-import { buildRunReport, collectRun, NoChromiumError, renderReportPdf, reportInputOf } from '../report';
+import {
+  buildRunReport,
+  collectRun,
+  NoChromiumError,
+  recordedRunReportInput,
+  renderReportPdf,
+  reportInputOf,
+  type RunReportInput,
+} from '../report';
 import { UsageError } from './errors';
 import { positiveNumber } from './options';
 import { openLineInput } from './line-input';
 import { loadProfileFile } from './profile-file';
+import { openRecordedReader } from './recorded-run';
 
 interface ReportOptions {
   db?: string;
@@ -44,31 +53,45 @@ export function registerReport(program: Command): void {
 async function runReport(target: string | undefined, options: ReportOptions): Promise<void> {
   const intervalS = positiveNumber('--interval', options.interval, 'seconds');
   const profile = options.profile ? loadProfileFile(options.profile) : null;
-  let input;
-  let source: string;
-  if (options.db) {
-    const run = target ?? 'latest';
-    input = openLineInput(undefined, { db: options.db, run, intervalS });
-    source = `run ${run} of ${basename(options.db)}`;
-  } else if (target && DATABASE_FILE.test(target)) {
-    input = openLineInput(target, { run: options.run ?? 'latest', intervalS });
-    source = `run ${options.run ?? 'latest'} of ${basename(target)}`;
+  const dbPath = options.db ?? (target && DATABASE_FILE.test(target) ? target : undefined);
+  const runSelector = options.db ? (target ?? 'latest') : (options.run ?? 'latest');
+  let report: RunReportInput;
+  if (dbPath && !profile) {
+    // A recorded run: its stored samples and gaps through the engine, the same input the
+    // app's "Save report" uses, so both give the same report of the same run.
+    const { reader, runId } = openRecordedReader(dbPath, runSelector);
+    try {
+      report = recordedRunReportInput(reader, runId, `run ${runId} of ${basename(dbPath)}`);
+    } catch (err) {
+      throw new UsageError((err as Error).message);
+    } finally {
+      reader.close();
+    }
   } else {
-    if (!target)
-      throw new UsageError('give a run id with --db FILE, a .sqlite recording, or a telemetry file');
-    input = openLineInput(target, { intervalS });
-    source = target === '-' ? 'standard input' : basename(target);
+    // A file, standard input, or a recorded run read again with another --profile.
+    let input;
+    let source: string;
+    if (dbPath) {
+      input = openLineInput(undefined, { db: dbPath, run: runSelector, intervalS });
+      source = `run ${runSelector} of ${basename(dbPath)}`;
+    } else {
+      if (!target)
+        throw new UsageError('give a run id with --db FILE, a .sqlite recording, or a telemetry file');
+      input = openLineInput(target, { intervalS });
+      source = target === '-' ? 'standard input' : basename(target);
+    }
+    const run = await collectRun(input, profile);
+    if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
+    report = reportInputOf(run, `Run report: ${run.profile.name}`, source);
   }
-  const run = await collectRun(input, profile);
-  if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
-  const html = buildRunReport(reportInputOf(run, `Run report: ${run.profile.name}`, source));
+  const html = buildRunReport(report);
   try {
     writeFileSync(options.out, html);
   } catch (err) {
     throw new UsageError(`cannot write the report to ${options.out}: ${(err as Error).message}`);
   }
   process.stderr.write(
-    `taperline: wrote ${options.out} (${run.samples.length} samples, ${run.events.length} events)\n`,
+    `taperline: wrote ${options.out} (${report.samples.length} samples, ${report.events.length} events)\n`,
   );
   if (!options.pdf) return;
   try {
