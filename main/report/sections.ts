@@ -6,7 +6,8 @@ import type { AlarmEvent, EngineEvent, Phase } from '@shared/engine/types';
 import { clock, duration, escapeHtml, table } from './html';
 import type { GapRow, PhaseSegment, ReportMetrics } from './metrics';
 
-const PHASE_NAMES: Record<Phase, string> = {
+/** How the report names each phase (text, so colour is never the only signal). */
+export const PHASE_NAMES: Record<Phase, string> = {
   precondition: 'precondition',
   cc: 'CC (constant current)',
   cv: 'CV (constant voltage)',

@@ -4,6 +4,7 @@
  * physical cause in the model (a shorted cell, a hot box, weak light, a drifting
  * reference...), never from a scripted phase label.
  */
+import { gardenSensorPack } from '@shared/chemistry/demo-profiles';
 import type { ThermistorModel } from '@shared/telemetry/types';
 import type { BenchParams } from './bench';
 import { DEFAULT_CONVERTER } from './converter';
@@ -47,13 +48,7 @@ function gardenPack(overrides: Partial<PackParams> = {}): PackParams {
 function gardenProfile(name: string, overrides: Partial<ProfileJson> = {}): ProfileJson {
   return {
     name,
-    chemistry: 'li-ion',
-    cells: 3,
-    capacityAh: 2.5,
-    chargeCurrentA: 1.0,
-    terminationA: 0.1,
-    timerMin: 240,
-    tempWindowC: [0, 45],
+    ...gardenSensorPack(),
     thermistor: DEMO_THERMISTOR,
     ...overrides,
   };

@@ -3,6 +3,7 @@
  * mapping, turned into profile JSON (PROTOCOL section 2). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
+import { gardenSensorPack } from '@shared/chemistry/demo-profiles';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { CHEMISTRIES } from '@shared/chemistry/types';
 import type { CanonicalField } from '@shared/telemetry/types';
@@ -58,16 +59,7 @@ export const PRESETS: { label: string; profile: Record<string, unknown> }[] = [
   { label: 'NiMH (chemistry defaults)', profile: { chemistry: 'nimh', cells: 4 } },
   {
     label: 'Demo: garden sensor, 3S Li-ion 2.5 Ah',
-    profile: {
-      name: 'garden-sensor 3S Li-ion',
-      chemistry: 'li-ion',
-      cells: 3,
-      capacityAh: 2.5,
-      chargeCurrentA: 1.0,
-      terminationA: 0.1,
-      timerMin: 240,
-      tempWindowC: [0, 45],
-    },
+    profile: { name: 'garden-sensor 3S Li-ion', ...gardenSensorPack() },
   },
   {
     label: 'Demo: weather station, 4S LiFePO4 6 Ah on a panel',

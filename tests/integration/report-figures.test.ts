@@ -11,25 +11,17 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProfile } from '@shared/chemistry/profile';
 import { createPipeline } from '@shared/engine/pipeline';
-import { PHASES, type EngineEvent } from '@shared/engine/types';
+import { PHASES, type EngineEvent, type Phase } from '@shared/engine/types';
 import { openLineInput } from '../../main/cli/line-input';
 import { openRecorder, openRunReader } from '../../main/recorder';
 import { buildRunReport, collectRun, recordedRunReportInput, reportInputOf } from '../../main/report';
 import { duration } from '../../main/report/html';
+import { PHASE_NAMES } from '../../main/report/sections';
 import { getScenario, simulatedLines } from '../../main/simulator';
 
 // Invented demo data: the simulator's weather-station pack on a solar panel, with source telemetry.
 const SCENARIO = 'solar-lifepo4-4s';
 const START_RX_S = 1_780_000_000;
-
-const PHASE_LABELS: Record<string, string> = {
-  precondition: 'precondition',
-  cc: 'CC (constant current)',
-  cv: 'CV (constant voltage)',
-  done: 'done',
-  fault: 'fault',
-  idle: 'idle (no usable source)',
-};
 
 function section(html: string, id: string): string {
   const m = new RegExp(`<section id="${id}"[\\s\\S]*?</section>`).exec(html);
@@ -95,7 +87,7 @@ test('the file report shows the engine summary and metrics for the same lines', 
   );
   for (const phase of PHASES) {
     const s = summary.phaseS[phase] ?? 0;
-    assert.equal(rows.get(PHASE_LABELS[phase]), s > 0 ? duration(s) : undefined, `time in ${phase}`);
+    assert.equal(rows.get(PHASE_NAMES[phase as Phase]), s > 0 ? duration(s) : undefined, `time in ${phase}`);
   }
 });
 
