@@ -7,7 +7,7 @@ import type { EngineEvent, RunSummary } from '@shared/engine/types';
 import { positiveNumber, speedOrMax } from './options';
 import { loadProfileFile } from './profile-file';
 import { openLineInput } from './line-input';
-import { ProfiledRun } from './profiled-run';
+import { ProfiledRun } from '@shared/engine/assumed-profile';
 import { formatEventText, formatSummaryText, summaryRecord } from './replay-format';
 
 interface ReplayOptions {
