@@ -225,21 +225,6 @@ async function record(options: RecordOptions): Promise<void> {
   process.stdout.write(
     'Caution: charging lithium and lead-acid cells can start fires; set limits from the cell maker’s datasheet and local codes.\n',
   );
-  for (const config of configs) {
-    const path = config.label ?? config.id;
-    try {
-      await manager.addStation(config);
-    } catch (err) {
-      // Stations already started must not keep their runs open: close them all, then say why.
-      await manager.close();
-      recorder?.close();
-      if (!(err instanceof StationConfigError)) throw err;
-      throw new UsageError(
-        `cannot record ${path}: ${err.message}; the stations already started were stopped and their runs closed`,
-      );
-    }
-  }
-
   let publisher: Publisher | null = null;
   if (options.publish) {
     const bench = options.bench ?? topicLevel(hostname());
@@ -249,7 +234,24 @@ async function record(options: RecordOptions): Promise<void> {
       profileOf: (id) => manager.configOf(id)?.profile ?? null,
       onNote: (message) => display.message(`note: ${message}`, snapshots()),
     });
+    // Before the stations start, so their first samples are published too.
     process.stdout.write(`Publishing as bench "${bench}" to ${options.publish}\n`);
+  }
+
+  for (const config of configs) {
+    const path = config.label ?? config.id;
+    try {
+      await manager.addStation(config);
+    } catch (err) {
+      // Stations already started must not keep their runs open: close them all, then say why.
+      await publisher?.stop();
+      await manager.close();
+      recorder?.close();
+      if (!(err instanceof StationConfigError)) throw err;
+      throw new UsageError(
+        `cannot record ${path}: ${err.message}; the stations already started were stopped and their runs closed`,
+      );
+    }
   }
 
   const refresh = setInterval(() => display.update(snapshots()), 500);
@@ -261,6 +263,7 @@ async function record(options: RecordOptions): Promise<void> {
   });
   clearInterval(refresh);
   const last = snapshots();
+  await manager.close();
   if (publisher) {
     await publisher.stop();
     const p = publisher.stats();
@@ -268,7 +271,6 @@ async function record(options: RecordOptions): Promise<void> {
       `Published ${p.acknowledged} of ${p.published} messages to the broker${p.dropped > 0 ? ` (${p.dropped} dropped: the broker was away too long)` : ''}.\n`,
     );
   }
-  await manager.close();
   recorder?.close();
   display.update(last, true);
   for (const s of last) {

@@ -32,6 +32,7 @@ export interface PublisherStats {
 
 export interface Publisher {
   stats(): PublisherStats;
+  /** Call after the stations closed, so their last samples are published too. */
   stop(): Promise<void>;
 }
 
@@ -64,8 +65,10 @@ export async function startPublisher(
   const session = Date.now() / 1000;
   const online = benchTopic(prefix, bench);
   const client: MqttClient = connect(brokerUrl, {
+    // A persistent session: messages sent but not yet acknowledged when the broker went away
+    // are sent again when it is back (MQTT 3.1.1 section 4.4).
     clientId: `taperline-bench-${bench}-${process.pid}`.slice(0, 64),
-    clean: true,
+    clean: false,
     reconnectPeriod: 1000,
     connectTimeout: 5000,
     queueQoSZero: false,
@@ -159,16 +162,21 @@ export async function startPublisher(
       });
     }
   };
-  const onStation = (s: StationSnapshot) => publishStatus(s);
+  /** Stations seen, with their last label and run, for the closing status at stop. */
+  const known = new Map<string, StationSnapshot>();
+  const onStation = (s: StationSnapshot) => {
+    known.set(s.id, s);
+    publishStatus(s);
+  };
   const onSource = ({ stationId }: { stationId: string }) => {
     const s = stations.get(stationId);
-    if (s) publishStatus(s);
+    if (s) onStation(s);
   };
   stations.on('sample', onSample);
   stations.on('event', onEvent);
   stations.on('station-added', onStation);
   stations.on('source', onSource);
-  for (const s of stations.list()) publishStatus(s);
+  for (const s of stations.list()) onStation(s);
 
   return {
     stats: () => ({ ...stats }),
@@ -179,7 +187,7 @@ export async function startPublisher(
       stations.off('source', onSource);
       clearInterval(timer);
       flush();
-      for (const s of stations.list())
+      for (const s of known.values())
         publish(
           stationTopic(prefix, bench, s.id, 'status'),
           {

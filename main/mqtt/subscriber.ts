@@ -51,11 +51,17 @@ function centralProfile(profile: unknown): unknown {
   return rest;
 }
 
+/** Lines kept for a remote station whose station is still being added. */
+const MAX_EARLY_LINES = 10_000;
+/** How long a batch after a missing one waits for it (QoS 1 resends may come out of order). */
+export const REORDER_WAIT_MS = 5000;
+
 class RemoteSource extends EventEmitter<LineSourceEvents> implements LineSource {
   readonly label: string;
   status: SourceStatus = { state: 'connecting', detail: 'waiting for the broker' };
   lastRxS: number | null = null;
   started = false;
+  private early: { text: string; rxS: number }[] = [];
 
   constructor(readonly id: string) {
     super();
@@ -65,6 +71,9 @@ class RemoteSource extends EventEmitter<LineSourceEvents> implements LineSource 
   start(): void {
     this.started = true;
     this.emit('status', this.status);
+    const early = this.early;
+    this.early = [];
+    for (const line of early) this.emit('line', { ...line, tooLong: false });
   }
 
   async stop(): Promise<void> {
@@ -87,6 +96,7 @@ class RemoteSource extends EventEmitter<LineSourceEvents> implements LineSource 
   line(text: string, rxS: number): void {
     this.lastRxS = rxS;
     if (this.started) this.emit('line', { text, rxS, tooLong: false });
+    else if (this.early.length < MAX_EARLY_LINES) this.early.push({ text, rxS });
   }
 }
 
@@ -96,7 +106,11 @@ export function startSubscriber(url: string, stations: StationManager): Subscrib
   const { brokerUrl, prefix } = parsed;
   const sources = new Map<string, RemoteSource>();
   const benchOnline = new Map<string, boolean>();
-  const seqs = new Map<string, { session: number; seq: number }>();
+  /** Per station: the next batch expected, batches that came early, and the wait for a missing one. */
+  const order = new Map<
+    string,
+    { session: number; next: number; held: Map<number, PublishedSample[]>; timer: NodeJS.Timeout | null }
+  >();
   const lost = new Map<string, number>();
   const adding = new Map<string, Promise<unknown>>();
   const note = (message: string, level: 'warn' | 'critical' = 'warn') =>
@@ -167,6 +181,33 @@ export function startSubscriber(url: string, stations: StationManager): Subscrib
   client.on('close', () => down('connection closed'));
   client.on('error', (err) => down(err.message));
 
+  /** Hands on batches in sequence order; a missing one is waited for, then counted as lost. */
+  function deliver(
+    id: string,
+    source: RemoteSource,
+    o: { next: number; held: Map<number, PublishedSample[]>; timer: NodeJS.Timeout | null },
+  ): void {
+    for (let batch = o.held.get(o.next); batch; batch = o.held.get(o.next)) {
+      o.held.delete(o.next);
+      o.next++;
+      for (const s of batch) source.line(sampleLine(s), s.rxS);
+    }
+    if (o.held.size === 0) {
+      if (o.timer) clearTimeout(o.timer);
+      o.timer = null;
+      return;
+    }
+    o.timer ??= setTimeout(() => {
+      o.timer = null;
+      const first = Math.min(...o.held.keys());
+      const missing = first - o.next;
+      lost.set(id, (lost.get(id) ?? 0) + missing);
+      note(`${id}: ${missing} sample batch(es) from the bench never arrived; the run has a hole there`);
+      o.next = first;
+      deliver(id, source, o);
+    }, REORDER_WAIT_MS);
+  }
+
   client.on('message', (topic, payload) => {
     const where = parseTopic(prefix, topic);
     if (!where) return;
@@ -197,22 +238,21 @@ export function startSubscriber(url: string, stations: StationManager): Subscrib
       const p = samplesPayload.safeParse(json);
       if (!p.success) return;
       const { session, seq, samples } = p.data;
-      const last = seqs.get(id);
-      if (last && last.session === session && seq > last.seq + 1) {
-        const missing = seq - last.seq - 1;
-        lost.set(id, (lost.get(id) ?? 0) + missing);
-        note(
-          `${id}: ${missing} sample batch(es) from the bench never arrived (lost in the broker); the run has a hole there`,
-        );
-      }
-      if (last && last.session === session && seq <= last.seq) return; // a repeat (QoS 1 may resend)
-      seqs.set(id, { session, seq });
       const source = sourceOf(id);
       if (!stations.get(id) && !adding.has(id))
         ensureStation(where.bench, where.station, where.station, null);
       if (source.status.state !== 'open' && brokerUp)
         source.setStatus({ state: 'open', detail: `bench ${where.bench} through ${brokerUrl}` });
-      for (const s of samples) source.line(sampleLine(s), s.rxS);
+      let o = order.get(id);
+      if (!o || o.session !== session) {
+        // A bench (re)started: its batches count from 1 again.
+        if (o?.timer) clearTimeout(o.timer);
+        o = { session, next: seq, held: new Map(), timer: null };
+        order.set(id, o);
+      }
+      if (seq < o.next || o.held.has(seq)) return; // a repeat (QoS 1 may send twice)
+      o.held.set(seq, samples);
+      deliver(id, source, o);
     }
   });
 
@@ -225,6 +265,7 @@ export function startSubscriber(url: string, stations: StationManager): Subscrib
     sourceFor: (config) => sourceOf(`${config.bench}/${config.station}`),
     lostBatches: () => Object.fromEntries(lost),
     async stop() {
+      for (const o of order.values()) if (o.timer) clearTimeout(o.timer);
       await client.endAsync(true);
     },
   };

@@ -18,7 +18,13 @@ import type { StationManagerEvents } from '../../main/station/types';
 import { ptyPair, until } from './serial-pty';
 
 // Invented demo scenario: a trail camera's 2S Li-ion pack.
-const PROFILE = { name: 'trail camera 2S', chemistry: 'li-ion', cells: 2, capacityAh: 2.5, chargeCurrentA: 1.0 };
+const PROFILE = {
+  name: 'trail camera 2S',
+  chemistry: 'li-ion',
+  cells: 2,
+  capacityAh: 2.5,
+  chargeCurrentA: 1.0,
+};
 const ccLine = (t: number) =>
   `t=${t} vbat=${(7.4 + t * 0.001).toFixed(3)} ibat=1.000 temp=25.0 vin=12.0 iin=0.7 chg=1 flt=0`;
 
@@ -44,7 +50,10 @@ function gapRows(dbPath: string) {
   try {
     return {
       runs: db.prepare('SELECT id, lines FROM runs').all() as { id: number; lines: number }[],
-      gaps: db.prepare("SELECT t, end_t FROM events WHERE type = 'gap'").all() as { t: number; end_t: number }[],
+      gaps: db.prepare("SELECT t, end_t FROM events WHERE type = 'gap'").all() as {
+        t: number;
+        end_t: number;
+      }[],
     };
   } finally {
     db.close();
@@ -74,7 +83,11 @@ test('a TCP station reads lines, sends to the socket, and a dropped connection i
       profile: PROFILE,
     });
     assert.equal(snap.sourceLabel, `tcp://127.0.0.1:${port}`);
-    await until(() => clients.length === 1 && sources.some((s) => s.status.state === 'open'), 5000, 'connected');
+    await until(
+      () => clients.length === 1 && sources.some((s) => s.status.state === 'open'),
+      5000,
+      'connected',
+    );
     // Split across writes mid-line: the shared framer joins them.
     clients[0]!.write(`${ccLine(0)}\n${ccLine(1)}\r\n${ccLine(2).slice(0, 20)}`);
     clients[0]!.write(`${ccLine(2).slice(20)}\n`);
@@ -85,9 +98,17 @@ test('a TCP station reads lines, sends to the socket, and a dropped connection i
 
     clients[0]!.destroy(); // the board drops off the Wi-Fi
     await until(() => sources.some((s) => s.status.state === 'lost'), 5000, 'lost');
-    await until(() => clients.length === 2 && sources.filter((s) => s.status.state === 'open').length === 2, 5000, 'reconnected');
+    await until(
+      () => clients.length === 2 && sources.filter((s) => s.status.state === 'open').length === 2,
+      5000,
+      'reconnected',
+    );
     for (let t = 10; t < 13; t++) clients[1]!.write(`${ccLine(t)}\n`);
-    await until(() => lines.filter((l) => l.line.kind === 'sample').length === 6, 5000, 'lines after the reconnect');
+    await until(
+      () => lines.filter((l) => l.line.kind === 'sample').length === 6,
+      5000,
+      'lines after the reconnect',
+    );
     assert.equal(manager.get('wifi-1')?.runId, snap.runId, 'the same run continues');
     await manager.close();
     recorder.close();
@@ -111,11 +132,23 @@ test('a TCP station with nothing listening keeps retrying, then connects when th
   const clients: Socket[] = [];
   const server = createServer((s) => clients.push(s));
   try {
-    await manager.addStation({ id: 'late', source: { kind: 'tcp', host: '127.0.0.1', port }, profile: PROFILE });
-    await until(() => problems.some((p) => /cannot connect to tcp:\/\/127\.0\.0\.1/.test(p.message)), 5000, 'a problem');
+    await manager.addStation({
+      id: 'late',
+      source: { kind: 'tcp', host: '127.0.0.1', port },
+      profile: PROFILE,
+    });
+    await until(
+      () => problems.some((p) => /cannot connect to tcp:\/\/127\.0\.0\.1/.test(p.message)),
+      5000,
+      'a problem',
+    );
     assert.ok(!sources.some((s) => s.status.state === 'lost'), 'never connected is not a gap');
     await new Promise<void>((r) => server.listen(port, '127.0.0.1', () => r()));
-    await until(() => sources.some((s) => s.status.state === 'open'), 10_000, 'connected once the server is up');
+    await until(
+      () => sources.some((s) => s.status.state === 'open'),
+      10_000,
+      'connected once the server is up',
+    );
     assert.equal(problems.filter((p) => /cannot connect/.test(p.message)).length, 1, 'said once');
   } finally {
     await manager.close();
@@ -180,21 +213,29 @@ test('behind ser2net in front of a socat pty: lines, a send, and a ser2net resta
   await manager.send('rack-pi-1', 'version?', '\n');
   const buf = Buffer.alloc(256);
   let got = '';
-  await until(() => {
-    try {
-      const n = readSync(device, buf, 0, buf.length, null);
-      got += buf.subarray(0, n).toString('utf8');
-    } catch {
-      // EAGAIN: nothing yet
-    }
-    return got.includes('version?');
-  }, 5000, 'the sent line at the pty');
+  await until(
+    () => {
+      try {
+        const n = readSync(device, buf, 0, buf.length, null);
+        got += buf.subarray(0, n).toString('utf8');
+      } catch {
+        // EAGAIN: nothing yet
+      }
+      return got.includes('version?');
+    },
+    5000,
+    'the sent line at the pty',
+  );
 
   const before = lines.length;
   ser2net.kill('SIGKILL');
   await until(() => sources.some((s) => s.status.state === 'lost'), 10_000, 'lost when ser2net goes');
   ser2net = startSer2net(configPath, dir);
-  await until(() => sources.filter((s) => s.status.state === 'open').length === 2, 15_000, 'back through ser2net');
+  await until(
+    () => sources.filter((s) => s.status.state === 'open').length === 2,
+    15_000,
+    'back through ser2net',
+  );
   await until(
     () => {
       writeSync(device, `${ccLine(100 + lines.length)}\n`);
