@@ -171,7 +171,7 @@ async function record(options: RecordOptions): Promise<void> {
   // Checked before anything starts, so no run is opened only to be closed again.
   if (ports.length + simulate.length > MAX_STATIONS)
     throw new UsageError(
-      `at most ${MAX_STATIONS} stations can record at once (got ${ports.length + simulate.length}); nothing was recorded: run a second \`taperline record\` with another --db FILE for the rest`,
+      `at most ${MAX_STATIONS} stations can record at once (got ${ports.length} --port paths${simulate.length > 0 ? ` and ${simulate.length} --simulate` : ''}); nothing was recorded: run a second \`taperline record\` with another --db FILE for the rest`,
     );
   if (options.publish && !parseBrokerUrl(options.publish))
     throw new UsageError(`--publish must be mqtt://HOST[:PORT]/PREFIX (got "${options.publish}")`);
