@@ -95,13 +95,18 @@ export function tableRows(groups: RackGroup[]): RackRow[] {
       const last = view.state.last;
       const alarms = view.state.activeAlarms;
       const station = g.bench === LOCAL_BENCH ? view.id : view.id.slice(g.bench.length + 1);
+      // A remote station's label starts with its bench, already in its own column.
+      const label =
+        g.bench !== LOCAL_BENCH && view.label.startsWith(`${g.bench}/`)
+          ? view.label.slice(g.bench.length + 1)
+          : view.label;
       rows.push({
         model,
         rank: Math.max(troubleRank(model), g.stale ? STALE_RANK : 0),
         stale: g.stale !== null,
         values: {
           bench: g.bench,
-          station: view.label && view.label !== view.id ? `${station} · ${view.label}` : station,
+          station: label && label !== station && view.label !== view.id ? `${station} · ${label}` : station,
           board: boardOf(model),
           phase: phaseWords(view.state.phase, view.profile.chemistry),
           vbatV: formatNumber(last?.vbatV, 2),

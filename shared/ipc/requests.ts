@@ -2,7 +2,17 @@
 import { z } from 'zod';
 import { connectableSourceSchema, stationSchema } from '../sources/schemas';
 
+/**
+ * A station that exists: besides the ids a person gives, a remote station is
+ * `<bench>/<station>` and a recorded port may carry its path (`serial:/dev/ttyUSB0`).
+ */
 const stationId = z
+  .string()
+  .min(1)
+  .max(130)
+  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only');
+/** The id of a new station added from the Connect view. */
+const newStationId = z
   .string()
   .min(1)
   .max(64)
@@ -15,7 +25,7 @@ const profileJson = z.unknown();
 
 /** A station as the Connect view asks for it: the kinds a person can pick (shared/sources). */
 export const stationConfigSchema = stationSchema
-  .extend({ id: stationId, source: connectableSourceSchema })
+  .extend({ id: newStationId, source: connectableSourceSchema })
   .strict();
 
 const window = { fromT: z.number().min(0), toT: z.number().min(0) };
