@@ -1,6 +1,6 @@
 /**
  * A byte-run guard placed before the readline parser: it enforces the line length cap of
- * PROTOCOL section 1 so a device streaming garbage without newlines cannot grow memory.
+ * docs/telemetry.md so a device streaming garbage without newlines cannot grow memory.
  * A run longer than `maxBytes` (plus one `\r`) is cut: its first `maxBytes` bytes go on as
  * one line, reported through `onCut`, and the rest is dropped up to the next newline.
  * At most `maxBytes + 1` bytes are held, whatever arrives.

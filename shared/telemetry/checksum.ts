@@ -1,5 +1,5 @@
 /**
- * NMEA 0183 style line checksum (PROTOCOL section 1): `*HH` at the end of a line is the
+ * NMEA 0183 style line checksum (docs/telemetry.md): `*HH` at the end of a line is the
  * 8-bit XOR of every character before the `*`, written as two hex digits. As in NMEA, a
  * leading `$` or `!` start delimiter is not part of the XOR.
  *

@@ -1,5 +1,5 @@
 /**
- * One framed line -> one LineResult (PROTOCOL section 1). The shape is detected per line:
+ * One framed line -> one LineResult (docs/telemetry.md). The shape is detected per line:
  * `#` firmware message, key=value pairs, CSV after a header line, or one JSON object.
  * Never throws: anything that does not parse is a `rejected` result with a reason and a
  * detail a person can read.

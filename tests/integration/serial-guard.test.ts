@@ -1,6 +1,6 @@
 /**
  * The serial framing chain (byte-run guard + @serialport/parser-readline) against the
- * project's reference framer (shared/telemetry/framer.ts, PROTOCOL section 1): for any
+ * project's reference framer (shared/telemetry/framer.ts, docs/telemetry.md): for any
  * bytes in any chunking, both give the same lines and the same cut flags.
  */
 import { test } from 'node:test';
@@ -81,7 +81,7 @@ test('a 10 MB run without newline is one cut line of MAX_LINE_BYTES, memory held
   for (let i = 0; i < 160; i++) chunks.push(chunk);
   chunks.push(new TextEncoder().encode('\nt=1 vbat=8.2\n'));
   const { lines, maxHeld } = await viaSerialChain(chunks);
-  // PROTOCOL section 1: at most 4096 bytes per line; the cut is delivered once, then resync at the newline.
+  // docs/telemetry.md: at most 4096 bytes per line; the cut is delivered once, then resync at the newline.
   assert.equal(MAX_LINE_BYTES, 4096);
   assert.deepEqual(lines, [
     ['A'.repeat(4096), true],
