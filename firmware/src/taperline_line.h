@@ -226,16 +226,11 @@ static void tl__word(tl_line *l, const char *key, uint8_t kflash, const char *wo
 static inline void tl_word(tl_line *l, const char *key, const char *word) { tl__word(l, key, 0, word, 0); }
 static inline void tl_word_P(tl_line *l, const char *key, const char *word) { tl__word(l, key, 1, word, 1); }
 
-/* A channel with no reading this time (sensor absent, conversion failed): key=value
- * leaves it out, CSV leaves its cell empty, JSON writes null. */
+/* A channel with no reading this time (sensor absent, conversion failed): CSV leaves its
+ * cell empty; key=value and JSON leave the key out (Taperline reads a JSON null on an
+ * unknown key as the text "null", so null is not used). */
 static void tl__missing(tl_line *l, const char *key, uint8_t flash) {
-  if (l->shape == TL_KV) return;
-  if (tl__key(l, key, flash) && l->shape == TL_JSON) {
-    tl__put(l, 'n');
-    tl__put(l, 'u');
-    tl__put(l, 'l');
-    tl__put(l, 'l');
-  }
+  if (l->shape == TL_CSV) (void)tl__key(l, key, flash);
 }
 static inline void tl_missing(tl_line *l, const char *key) { tl__missing(l, key, 0); }
 static inline void tl_missing_P(tl_line *l, const char *key) { tl__missing(l, key, 1); }
@@ -255,7 +250,7 @@ static uint16_t tl_end(tl_line *l) {
   uint8_t x;
   if (l->state & TL__HEADER_PASS) {
     if (l->fields < 2) l->state |= TL_ERR_EMPTY; /* a header needs two names to read as one */
-  } else if (l->shape == TL_KV && l->len == 0) {
+  } else if (l->shape == TL_KV && l->fields == 0) {
     l->state |= TL_ERR_EMPTY;
   }
   if (l->shape == TL_JSON) tl__put(l, '}');
