@@ -63,8 +63,9 @@ public:
     uint16_t n = tl_end(&line_);
     if (n == 0) {
       dropped_++;
-      out_->print(F("# taperline: line not sent, error "));
-      out_->println(tl_error(&line_));
+      out_->print(F("# line not sent, error "));
+      out_->write(tl__hex(tl_error(&line_)));
+      out_->write('\n');
       return false;
     }
     write(n);

@@ -51,6 +51,19 @@
 extern "C" {
 #endif
 
+/* Keeps the bigger helpers out of line: each call site then costs a call, which on an
+ * 8-bit AVR is what keeps the library small (inlined copies grew the sketch by 1 KB). */
+#if defined(__GNUC__)
+#define TL__OUTLINE __attribute__((noinline))
+#else
+#define TL__OUTLINE
+#endif
+#ifdef __AVR__
+#define TL__FLASH PROGMEM
+#else
+#define TL__FLASH
+#endif
+
 /* Taperline's line limit: longer lines are cut and rejected by the app. */
 #define TL_MAX_LINE 4096u
 
@@ -113,7 +126,7 @@ static inline uint8_t tl__is_word_char(char c) {
 
 /* Copies a NUL-terminated string (RAM or flash); returns 0 when it is empty or holds a
  * character outside the word set (keys must also start with a letter or `_`). */
-static uint8_t tl__puts(tl_line *l, const char *s, uint8_t flash, uint8_t is_key) {
+TL__OUTLINE static uint8_t tl__puts(tl_line *l, const char *s, uint8_t flash, uint8_t is_key) {
   uint8_t ok = 1;
   uint16_t i = 0;
   for (;; i++) {
@@ -128,7 +141,7 @@ static uint8_t tl__puts(tl_line *l, const char *s, uint8_t flash, uint8_t is_key
 
 /* Starts a value: separator and key as the shape wants them. Returns 1 when the caller
  * should write the value text, 0 when this pass writes no value (CSV header). */
-static uint8_t tl__key(tl_line *l, const char *key, uint8_t flash) {
+TL__OUTLINE static uint8_t tl__key(tl_line *l, const char *key, uint8_t flash) {
   uint8_t first = l->fields == 0;
   if (l->fields < 255) l->fields++;
   if (l->shape == TL_CSV) {
@@ -150,21 +163,27 @@ static uint8_t tl__key(tl_line *l, const char *key, uint8_t flash) {
 }
 
 /* Writes +/-mag / 10^drop rounded half away from zero, with `keep` decimals
- * (drop, keep <= 3). `mag` may be 2147483648 (INT32_MIN's magnitude). */
-static void tl__fixed(tl_line *l, uint32_t mag, uint8_t neg, uint8_t drop, uint8_t keep) {
-  char digits[11];
-  uint8_t n = 0;
-  uint32_t div = 1;
-  while (drop--) div *= 10u;
-  if (div > 1) mag = mag / div + (mag % div >= div / 2u); /* half away from zero */
-  if (neg && mag) tl__put(l, '-'); /* a value that rounds to zero prints without a sign */
+ * (drop, keep <= 3). `mag` may be 2147483648 (INT32_MIN's magnitude). The rounding adds
+ * half of the dropped place and then leaves those digits out, so the only division is the
+ * one by 10 that makes the digits. */
+TL__OUTLINE static void tl__fixed(tl_line *l, uint32_t mag, uint8_t neg, uint8_t drop, uint8_t keep) {
+  char d[10];
+  uint8_t n = 0, i, top;
+  mag += drop == 0 ? 0u : drop == 1 ? 5u : drop == 2 ? 50u : 500u;
   do {
-    digits[n++] = (char)('0' + mag % 10u);
+    d[n++] = (char)('0' + mag % 10u);
     mag /= 10u;
-  } while (mag || n <= keep);
-  while (n) {
-    if (n == keep) tl__put(l, '.');
-    tl__put(l, digits[--n]);
+  } while (mag);
+  top = n > drop + keep ? n : (uint8_t)(drop + keep + 1); /* at least one digit before the point */
+  if (neg) /* a value that rounds to zero prints without a sign */
+    for (i = drop; i < n; i++)
+      if (d[i] != '0') {
+        tl__put(l, '-');
+        break;
+      }
+  for (i = top; i-- > drop;) {
+    if (i + 1 == drop + keep && keep) tl__put(l, '.');
+    tl__put(l, i < n ? d[i] : '0');
   }
 }
 
@@ -183,7 +202,7 @@ static inline void tl_begin(tl_line *l) {
 
 /* A value given in thousandths (mV, mA, m°C, ms) printed in the base unit with
  * `decimals` digits after the point (0..3), rounded half away from zero. */
-static void tl__milli(tl_line *l, const char *key, uint8_t flash, int32_t milli, uint8_t decimals) {
+TL__OUTLINE static void tl__milli(tl_line *l, const char *key, uint8_t flash, int32_t milli, uint8_t decimals) {
   if (decimals > 3) decimals = 3;
   if (tl__key(l, key, flash)) tl__fixed(l, tl__mag(milli), milli < 0, (uint8_t)(3 - decimals), decimals);
 }
@@ -195,7 +214,7 @@ static inline void tl_milli_P(tl_line *l, const char *key, int32_t milli, uint8_
 }
 
 /* A whole number as it is: raw ADC counts, a cycle count. */
-static void tl__int(tl_line *l, const char *key, uint8_t flash, int32_t value) {
+TL__OUTLINE static void tl__int(tl_line *l, const char *key, uint8_t flash, int32_t value) {
   if (tl__key(l, key, flash)) tl__fixed(l, tl__mag(value), value < 0, 0, 0);
 }
 static inline void tl_int(tl_line *l, const char *key, int32_t value) { tl__int(l, key, 0, value); }
@@ -205,19 +224,19 @@ static inline void tl_int_P(tl_line *l, const char *key, int32_t value) { tl__in
 
 /* Device time `t` from a millisecond clock (millis() wraps after 49.7 days; so does t). */
 static inline void tl_time_ms(tl_line *l, uint32_t ms) {
-  static const char key[] = "t"; /* one byte: RAM is fine */
-  if (tl__key(l, key, 0)) tl__fixed(l, ms, 0, 0, 3);
+  static const char key[] TL__FLASH = "t";
+  if (tl__key(l, key, 1)) tl__fixed(l, ms, 0, 0, 3);
 }
 
 /* A status pin: 1 when `on` is non-zero, else 0. */
-static void tl__flag(tl_line *l, const char *key, uint8_t flash, int on) {
+TL__OUTLINE static void tl__flag(tl_line *l, const char *key, uint8_t flash, int on) {
   if (tl__key(l, key, flash)) tl__put(l, on ? '1' : '0');
 }
 static inline void tl_flag(tl_line *l, const char *key, int on) { tl__flag(l, key, 0, on); }
 static inline void tl_flag_P(tl_line *l, const char *key, int on) { tl__flag(l, key, 1, on); }
 
 /* A one-word text value such as src=panel (letters, digits, `_`, `.`, `-`). */
-static void tl__word(tl_line *l, const char *key, uint8_t kflash, const char *word, uint8_t wflash) {
+TL__OUTLINE static void tl__word(tl_line *l, const char *key, uint8_t kflash, const char *word, uint8_t wflash) {
   if (!tl__key(l, key, kflash)) return;
   if (l->shape == TL_JSON) tl__put(l, '"');
   if (!tl__puts(l, word, wflash, 0)) l->state |= TL_ERR_VALUE;
@@ -229,7 +248,7 @@ static inline void tl_word_P(tl_line *l, const char *key, const char *word) { tl
 /* A channel with no reading this time (sensor absent, conversion failed): CSV leaves its
  * cell empty; key=value and JSON leave the key out (Taperline reads a JSON null on an
  * unknown key as the text "null", so null is not used). */
-static void tl__missing(tl_line *l, const char *key, uint8_t flash) {
+TL__OUTLINE static void tl__missing(tl_line *l, const char *key, uint8_t flash) {
   if (l->shape == TL_CSV) (void)tl__key(l, key, flash);
 }
 static inline void tl_missing(tl_line *l, const char *key) { tl__missing(l, key, 0); }
@@ -246,7 +265,7 @@ static inline uint8_t tl_checksum(const char *s, uint16_t n) {
 
 /* Ends the line: `*HH`, `\n`, NUL. Returns the bytes to send (`\n` included), or 0 when
  * the line must not be sent (see tl_error). */
-static uint16_t tl_end(tl_line *l) {
+TL__OUTLINE static uint16_t tl_end(tl_line *l) {
   uint8_t x;
   if (l->state & TL__HEADER_PASS) {
     if (l->fields < 2) l->state |= TL_ERR_EMPTY; /* a header needs two names to read as one */
@@ -278,15 +297,15 @@ static inline uint8_t tl_was_header(const tl_line *l) { return (uint8_t)((l->sta
 /* The start-up line `# board=<id> fw=<version>` (no checksum: Taperline stores `#` lines as
  * the board's own words). Returns its length with `\n`, or 0 when id or version is empty,
  * holds a character outside [A-Za-z0-9_.-] or does not fit. */
-static uint16_t tl__board(tl_line *l, const char *id, const char *fw, uint8_t flash) {
-  static const char head[] = "# board=";
-  static const char mid[] = " fw=";
-  uint8_t ok, i;
+TL__OUTLINE static uint16_t tl__board(tl_line *l, const char *id, const char *fw, uint8_t flash) {
+  static const char head[] TL__FLASH = "# board=";
+  static const char mid[] TL__FLASH = " fw=";
+  uint8_t ok;
   l->len = 0;
   l->state &= (uint8_t)~(TL__ERRORS | TL__WAS_HEADER);
-  for (i = 0; head[i]; i++) tl__put(l, head[i]);
+  (void)tl__puts(l, head, 1, 0); /* fixed text: its `#`, space and `=` are meant */
   ok = tl__puts(l, id, flash, 0);
-  for (i = 0; mid[i]; i++) tl__put(l, mid[i]);
+  (void)tl__puts(l, mid, 1, 0);
   ok &= tl__puts(l, fw, flash, 0);
   if (!ok) l->state |= TL_ERR_VALUE;
   if (l->state & TL__ERRORS) {
