@@ -7,8 +7,8 @@
  *   A1  charge current: output of a current-sense amplifier, gain 100, on a 10 mOhm
  *       low-side shunt (1 A -> 1.000 V; 5 A full scale)
  *   A2  NTC: 10 k pull-up from AVCC to A2, 10 k NTC from A2 to GND (sent raw as `ntc`)
- *   D2  charger's "charging" status output (open drain, low = charging)
- *   D3  charger's "fault" status output (open drain, low = fault)
+ *   D4  charger's "charging" status output (open drain, low = charging)
+ *   D5  charger's "fault" status output (open drain, low = fault)
  *   GND common with the charger's output negative, at the shunt's pack side
  *
  * Profile for Taperline: { "chemistry": "li-ion", "cells": 2, ...,
@@ -49,7 +49,7 @@ const uint32_t IBAT_FULL_SCALE_MA = VREF_MV * 1000UL / (AMP_GAIN * SHUNT_MILLIOH
 // Four readings are summed, so a full-scale sum is 4 x 1024.
 const uint16_t OVERSAMPLE = 4, SUM_STEPS = 4 * 1024;
 
-const uint8_t PIN_VBAT = A0, PIN_IBAT = A1, PIN_NTC = A2, PIN_CHG = 2, PIN_FLT = 3;
+const uint8_t PIN_VBAT = A0, PIN_IBAT = A1, PIN_NTC = A2, PIN_CHG = 4, PIN_FLT = 5;
 
 #ifndef TAPERLINE_BASELINE
 Taperline<LINE_BYTES> tl(Serial, TAPERLINE_SHAPE);
@@ -87,6 +87,11 @@ void setup() {
   Serial.begin(115200);
   pinMode(PIN_CHG, INPUT_PULLUP); // status outputs are open drain
   pinMode(PIN_FLT, INPUT_PULLUP);
+#ifdef __AVR__
+  // No PWM output here: stop the core's timers 1 and 2 (less current; timer 0 keeps millis()).
+  TCCR1B = 0;
+  TCCR2B = 0;
+#endif
 #ifndef TAPERLINE_BASELINE
   tl.hello(F(BOARD_ID), F(FW_VERSION));
 #endif
