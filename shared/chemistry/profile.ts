@@ -1,5 +1,5 @@
 /**
- * Profile validation (PROTOCOL section 2): the user's JSON -> a ResolvedProfile with every
+ * Profile validation (docs/profile.md): the user's JSON -> a ResolvedProfile with every
  * limit filled in from the chemistry's defaults, or a refusal that names the bad key and why.
  */
 import { z } from 'zod';
@@ -458,7 +458,7 @@ function round6(x: number): number {
   return Math.round(x * 1e6) / 1e6;
 }
 
-/** Validate a profile (PROTOCOL section 2) and fill in every default. Never throws. */
+/** Validate a profile (docs/profile.md) and fill in every default. Never throws. */
 export function parseProfile(input: unknown): ProfileResult {
   const deep = tooDeep(input);
   if (deep) return deep;

@@ -127,7 +127,7 @@ test('a line of exactly 4096 bytes plus \\r\\n is whole; 4097 bytes is cut (the 
     source.start();
     await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
     const device = await openDevice(pair.device);
-    // PROTOCOL section 1: at most 4096 bytes per line, not counting the newline and one \r before it.
+    // docs/telemetry.md: at most 4096 bytes per line, not counting the newline and one \r before it.
     await write(device, 'B'.repeat(4096) + '\r\n' + 'C'.repeat(4097) + '\nvbat=8.2\n');
     await until(() => got.lines.length >= 3, 5000, 'three lines');
     assert.deepEqual(
