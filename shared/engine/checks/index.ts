@@ -60,18 +60,27 @@ export function runChecks(input: CheckInput): CheckReport {
 }
 
 function judge(code: ExpectKey, [min, max]: [number, number], unit: string, m: Measurement): Check {
-  const base = { code, min, max, unit, basis: m.basis };
-  if ('judged' in m) return { ...base, measured: null, result: m.judged, note: m.note };
-  if (m.measured === null) return { ...base, measured: null, result: 'not-measured', note: m.note };
+  // Keys in the order of the contract's JSON: code, measured, min, max, unit, result, note.
+  const check = (measured: number | null, result: Check['result'], note: string): Check => ({
+    code,
+    measured,
+    min,
+    max,
+    unit,
+    result,
+    note,
+    basis: m.basis,
+  });
+  if ('judged' in m) return check(null, m.judged, m.note);
+  if (m.measured === null) return check(null, 'not-measured', m.note);
   const inside = m.measured >= min && m.measured <= max;
   const where = inside ? 'within' : m.measured < min ? 'below' : 'above';
   const shown = unit === 'min' ? fmtMin(m.measured * 60) : `${m.measured}${unit ? ' ' + unit : ''}`;
-  return {
-    ...base,
-    measured: m.measured,
-    result: inside ? 'pass' : 'fail',
-    note: `${shown} ${where} [${min}, ${max}]${unit ? ' ' + unit : ''}: ${m.note}`,
-  };
+  return check(
+    m.measured,
+    inside ? 'pass' : 'fail',
+    `${shown} ${where} [${min}, ${max}]${unit ? ' ' + unit : ''}: ${m.note}`,
+  );
 }
 
 export function verdictOf(checks: readonly Pick<Check, 'result'>[], faulted: boolean): Verdict {
