@@ -19,6 +19,9 @@ const BATCH_CSS = `
 .v-incomplete { color: var(--warn); font-weight: 600; }
 td.out { color: var(--crit); font-weight: 700; }
 td.nm { color: var(--muted); }
+#batch-boards table { font-size: 12px; }
+#batch-boards td, #batch-boards th { padding: 3px 5px; }
+#batch-boards td:first-child { white-space: nowrap; }
 .strips { display: grid; grid-template-columns: repeat(auto-fill, minmax(460px, 1fr)); gap: 12px; }
 `;
 

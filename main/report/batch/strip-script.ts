@@ -38,7 +38,9 @@ export const BATCH_STRIP_SCRIPT = String.raw`
           x: { type: 'linear', title: { display: true, text: s.title }, suggestedMin: s.axisMin, suggestedMax: s.axisMax },
           y: {
             type: 'linear', min: -0.7, max: n - 0.3, reverse: true,
-            ticks: { stepSize: 1, autoSkip: false, font: { size: 10 }, callback: function (v) { return Number.isInteger(v) ? s.boards[v] : ''; } },
+            // One tick per board, at its row (the axis runs half a row past each end).
+            afterBuildTicks: function (axis) { axis.ticks = s.boards.map(function (_, i) { return { value: i }; }); },
+            ticks: { autoSkip: false, font: { size: 10 }, callback: function (v) { return s.boards[v]; } },
             grid: { display: false }
           }
         }
