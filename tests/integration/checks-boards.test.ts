@@ -180,3 +180,25 @@ test('a 16-board burn-in batch recorded into SQLite: one line per board, the yie
   assert.equal(unknown.status, 2);
   assert.match(unknown.stderr, /no runs of batch "nope"/);
 });
+
+test('the Run report puts the verdict, the board and the checks table at the top', (t) => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-check-report-'));
+  t.after(() => rmSync(dir, { recursive: true, force: true }));
+  const file = join(dir, 'divider.log');
+  const board = BOARD_BUILDERS['board-divider-high']();
+  const lines = [...createTelemetryRun(board, { shape: 'kv', sampleIntervalS: 2 }).lines()];
+  writeFileSync(file, lines.map((l) => l.text).join('\n') + '\n');
+  const profile = join(dir, 'board.json');
+  writeFileSync(profile, JSON.stringify(board.profile));
+  const out = join(dir, 'report.html');
+  const r = cli(['report', file, '--profile', profile, '--out', out]);
+  assert.equal(r.status, 0, r.stderr);
+  const html = readFileSync(out, 'utf8');
+  assert.ok(
+    html.indexOf('id="checks"') < html.indexOf('id="profile"'),
+    'the verdict comes before the profile',
+  );
+  assert.match(html, /<span id="verdict" class="verdict verdict-fail">FAIL<\/span>/);
+  assert.match(html, /<td>GS-0004<\/td><td>not given<\/td><td>0\.3<\/td>/);
+  assert.match(html, /<td>regulationV<\/td><td>12\.75<\/td>/);
+});
