@@ -74,6 +74,25 @@ const dividerShape = {
     .optional(),
 };
 
+/** `[min, max]` of one design value; a reversed pair is refused with the key named. */
+const rangeSchema = () =>
+  z
+    .tuple([finite(), finite()])
+    .refine(([min, max]) => min <= max, { message: 'must be [min, max] with min at most max' });
+
+/** `expect`: what the board was designed to do, each key a `[min, max]` in its unit (board checks). */
+const expectSchema = z.strictObject({
+  chargeCurrentA: rangeSchema().optional(),
+  regulationV: rangeSchema().optional(),
+  terminationA: rangeSchema().optional(),
+  preconditionA: rangeSchema().optional(),
+  timerMin: rangeSchema().optional(),
+  efficiency: rangeSchema().optional(),
+  tempRiseC: rangeSchema().optional(),
+  inputV: rangeSchema().optional(),
+  chargeTimeMin: rangeSchema().optional(),
+});
+
 const thermistorSchema = z.discriminatedUnion('model', [
   z.strictObject({
     model: z.literal('beta'),
@@ -116,6 +135,7 @@ export const profileSchema = z.strictObject({
   tempCompVPerCPerCell: finite().min(-0.1).max(0).optional(),
   fields: fieldsSchema.optional(),
   thermistor: thermistorSchema.optional(),
+  expect: expectSchema.optional(),
 });
 
 export type ProfileInput = z.infer<typeof profileSchema>;
@@ -183,6 +203,7 @@ function fail(key: string, why: string, got: unknown): ProfileResult {
 function knownKeysAt(path: string[], input: unknown): string[] {
   if (path.length === 0) return Object.keys(profileSchema.shape);
   if (path.length === 1 && path[0] === 'fields') return Object.keys(fieldsSchema.shape);
+  if (path.length === 1 && path[0] === 'expect') return Object.keys(expectSchema.shape);
   if (path.length === 2 && path[0] === 'fields') return Object.keys(fieldMappingSchema.shape);
   if (path.length === 1 && path[0] === 'thermistor') {
     const model = input && typeof input === 'object' ? (input as Record<string, unknown>).model : undefined;
@@ -423,6 +444,7 @@ function resolve(input: ProfileInput): ProfileResult {
     defaulted,
   };
   if (th) profile.thermistor = th;
+  if (input.expect) profile.expect = input.expect;
   const given = new Set(Object.keys(input));
   return checkConsistency(profile, given) ?? { ok: true, profile };
 }
