@@ -4,10 +4,11 @@
  */
 import type { LineInput } from '../sources/line-input';
 import { UsageError } from './errors';
-import { readTelemetryLines, streamTelemetryLines } from './read-lines';
+import { readTelemetryLines, streamTelemetryBytes, streamTelemetryLines } from './read-lines';
 import { openRecordedRun } from './recorded-run';
 
 export type { LineInput };
+
 
 export interface LineInputOptions {
   db?: string;
@@ -25,6 +26,9 @@ export function openLineInput(file: string | undefined, options: LineInputOption
     profile: null,
     forEach: async (onLine) => {
       await streamTelemetryLines(file, onLine, { intervalS: options.intervalS });
+    },
+    forEachBytes: async (onLine) => {
+      await streamTelemetryBytes(file, onLine, { intervalS: options.intervalS });
     },
     lines: () => readTelemetryLines(file, { intervalS: options.intervalS }),
   };

@@ -26,7 +26,8 @@ export interface RackGroup {
 /** Rank of a stale group: below a critical alarm, above a station with a warning. */
 const STALE_RANK = 30;
 
-export function groupByBench(models: StationModel[]): RackGroup[] {
+/** `hold`: keep the order of `models` (the tiles stay where the pointer or the focus is). */
+export function groupByBench(models: StationModel[], hold = false): RackGroup[] {
   const byBench = new Map<string, StationModel[]>();
   for (const m of models) {
     const bench = benchOf(m);
@@ -36,7 +37,7 @@ export function groupByBench(models: StationModel[]): RackGroup[] {
   }
   const groups: RackGroup[] = [];
   for (const [bench, list] of byBench) {
-    list.sort((a, b) => troubleRank(b) - troubleRank(a) || a.view.id.localeCompare(b.view.id));
+    if (!hold) list.sort((a, b) => troubleRank(b) - troubleRank(a) || a.view.id.localeCompare(b.view.id));
     const lost = list.every((m) => m.view.source.state === 'lost');
     const first = list[0]!.view.source;
     const stale =
@@ -51,6 +52,7 @@ export function groupByBench(models: StationModel[]): RackGroup[] {
     const rank = Math.max(stale ? STALE_RANK : 0, ...list.map((m) => troubleRank(m)));
     groups.push({ bench, models: list, stale, rank });
   }
+  if (hold) return groups;
   // Trouble first; this machine's stations before other benches of the same rank.
   return groups.sort(
     (a, b) =>

@@ -90,6 +90,7 @@ export class ProfileAssumer {
 export class ProfiledRun {
   private pipeline: Pipeline | null;
   private assumer: ProfileAssumer | null;
+  private readonly decoder = new TextDecoder('utf-8');
   /** Set when the profile was assumed. */
   note: string | null = null;
 
@@ -110,6 +111,12 @@ export class ProfiledRun {
     }
     const decision = this.assumer!.push({ text, rxS, tooLong });
     if (decision) this.start(decision);
+  }
+
+  /** push for a line still in bytes (the replay fast path); the bytes are not kept. */
+  pushBytes(bytes: Uint8Array, from: number, to: number, rxS: number, tooLong: boolean): void {
+    if (this.pipeline) this.onOutcome(this.pipeline.pushBytes(bytes, from, to, rxS, tooLong));
+    else this.push(this.decoder.decode(bytes.subarray(from, to)), rxS, tooLong);
   }
 
   /** The pipeline after the last line (a profile is assumed now if none was yet). */
