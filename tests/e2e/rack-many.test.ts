@@ -185,7 +185,7 @@ test(
     await page.keyboard.press('Enter');
     await page.locator('#view-bench').waitFor({ state: 'visible' });
     assert.deepEqual(browser.errors, []);
-  // Remote ids (`<bench>/<station>`) are good ids for every request: their history loaded.
-  assert.equal(await page.getByText(/could not be loaded/).count(), 0);
+    // Remote ids (`<bench>/<station>`) are good ids for every request: their history loaded.
+    assert.equal(await page.getByText(/could not be loaded/).count(), 0);
   },
 );
