@@ -9,7 +9,6 @@ import { openRecordedRun } from './recorded-run';
 
 export type { LineInput };
 
-
 export interface LineInputOptions {
   db?: string;
   run?: string;

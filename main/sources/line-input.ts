@@ -12,7 +12,13 @@ export interface TimedLine {
 }
 
 /** One line still in bytes (`bytes[from..to)`), the fast path of files. */
-export type TimedByteLine = (bytes: Uint8Array, from: number, to: number, rxS: number, tooLong: boolean) => void;
+export type TimedByteLine = (
+  bytes: Uint8Array,
+  from: number,
+  to: number,
+  rxS: number,
+  tooLong: boolean,
+) => void;
 
 export interface LineInput {
   /** The profile the input was recorded with, when it carries one (database runs). */
