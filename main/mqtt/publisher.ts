@@ -154,7 +154,7 @@ export async function startPublisher(
       publish(stationTopic(prefix, bench, stationId, 'phase'), { phase: event.phase, t: event.t }, true);
     } else if (event.type === 'alarm' || event.type === 'alarm-clear') {
       flush();
-      publish(stationTopic(prefix, bench, stationId, 'alarms'), {
+      publish(stationTopic(prefix, bench, stationId, 'alarm'), {
         type: event.type,
         t: event.t,
         code: event.code,

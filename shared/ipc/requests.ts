@@ -3,14 +3,17 @@ import { z } from 'zod';
 import { connectableSourceSchema, stationSchema } from '../sources/schemas';
 
 /**
- * A station that exists: besides the ids a person gives, a remote station is
- * `<bench>/<station>` and a recorded port may carry its path (`serial:/dev/ttyUSB0`).
+ * A station that exists: an id a person gave, or a remote station's `<bench>/<station>`
+ * (one `/`; no part starts with a dot, so no path climbs out of anything).
  */
 const stationId = z
   .string()
   .min(1)
   .max(130)
-  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only');
+  .regex(
+    /^[A-Za-z0-9_-][A-Za-z0-9._:-]*(\/[A-Za-z0-9_-][A-Za-z0-9._:-]*)?$/,
+    'letters, digits, . _ - : and one / (bench/station), not starting with a dot',
+  );
 /** The id of a new station added from the Connect view. */
 const newStationId = z
   .string()

@@ -7,14 +7,14 @@
  *   PREFIX/<bench>/<station>/status   retained  station label, source state, profile JSON, run id
  *   PREFIX/<bench>/<station>/samples            a batch of samples with a sequence number
  *   PREFIX/<bench>/<station>/phase    retained  the current phase and when it began
- *   PREFIX/<bench>/<station>/alarms             one alarm raised or cleared
+ *   PREFIX/<bench>/<station>/alarm              one alarm raised or cleared
  *
  * Every message is JSON, published with QoS 1. `<station>` is the station id with characters
  * MQTT reserves (`/ + #`) replaced by `_`.
  */
 import { z } from 'zod';
 
-export const TOPIC_LEAVES = ['status', 'samples', 'phase', 'alarms'] as const;
+export const TOPIC_LEAVES = ['status', 'samples', 'phase', 'alarm'] as const;
 export type TopicLeaf = (typeof TOPIC_LEAVES)[number];
 
 /** A name usable as one topic level: no `/`, `+`, `#` or NUL, never empty. */
