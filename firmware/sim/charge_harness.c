@@ -9,7 +9,8 @@
  *   charge_harness FIRMWARE.elf SCRIPT.txt SPEEDUP UART.log
  *
  * After printing the pty it waits for a line on standard input (the reader is ready),
- * then runs the script's duration at SPEEDUP times real time and exits.
+ * then runs the script's duration at SPEEDUP times real time, prints "done ...", and
+ * keeps the pty open until standard input ends.
  */
 #define _GNU_SOURCE
 #include <fcntl.h>
@@ -171,8 +172,8 @@ int main(int argc, char **argv) {
   fflush(stdout);
   if (!fgets(line, sizeof line, stdin)) return 0; /* nobody is listening */
 
-  /* One extra half second after the last row so its line is out of the UART. */
-  sim_end_s = nrows + 0.5;
+  /* Half a second into the last row: its line is out of the UART, the next not yet due. */
+  sim_end_s = nrows - 0.5;
   t0 = now_s();
   for (;;) {
     int state = avr_run(avr);
@@ -192,8 +193,9 @@ int main(int argc, char **argv) {
   fclose(uart_log);
   printf("done %.3f s simulated in %.3f s (%lu steps, %lu asleep)\n", (double)avr->cycle / F_CPU, now_s() - t0, steps, sleeps);
   fflush(stdout);
-  /* Give the reader a moment to drain the pty before it closes. */
-  usleep(300000);
+  /* The pty stays open (the board stays plugged in) until standard input ends. */
+  while (fgets(line, sizeof line, stdin)) {
+  }
   close(pty_fd);
   return 0;
 }
