@@ -22,7 +22,11 @@ const NEEDS = [
   ['pkg-config', { cmd: 'pkg-config' }, 'pkg-config'],
   ['avr-gcc', { cmd: 'avr-gcc' }, 'gcc-avr'],
   ['avr-libc', { file: '/usr/lib/avr/include/avr/io.h' }, 'avr-libc'],
-  ['Arduino AVR core', { file: '/usr/share/arduino/hardware/arduino/avr/cores/arduino/Arduino.h' }, 'arduino-core-avr'],
+  [
+    'Arduino AVR core',
+    { file: '/usr/share/arduino/hardware/arduino/avr/cores/arduino/Arduino.h' },
+    'arduino-core-avr',
+  ],
   ['simavr', { cmd: 'simavr' }, 'simavr'],
   ['libsimavr headers', { file: '/usr/include/simavr/sim_avr.h' }, 'libsimavr-dev'],
   ['libelf headers', { file: '/usr/include/libelf.h' }, 'libelf-dev'],

@@ -9,12 +9,20 @@ export const FIRMWARE_DIR = resolve(__dirname, '..', '..', 'firmware');
 
 /** `make -C firmware <targets>` with extra variables; returns make's output, throws with it on failure. */
 export function make(targets: string[], vars: Record<string, string> = {}, buildDir = 'build'): string {
-  const args = ['-C', FIRMWARE_DIR, `BUILD=${buildDir}`, ...Object.entries(vars).map(([k, v]) => `${k}=${v}`), ...targets];
+  const args = [
+    '-C',
+    FIRMWARE_DIR,
+    `BUILD=${buildDir}`,
+    ...Object.entries(vars).map(([k, v]) => `${k}=${v}`),
+    ...targets,
+  ];
   try {
     return execFileSync('make', args, { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
   } catch (err) {
     const e = err as { stdout?: string; stderr?: string; message: string };
-    throw new Error(`make ${targets.join(' ')} failed:\n${e.stdout ?? ''}${e.stderr ?? e.message}`);
+    throw new Error(`make ${targets.join(' ')} failed:\n${e.stdout ?? ''}${e.stderr ?? e.message}`, {
+      cause: err,
+    });
   }
 }
 

@@ -182,12 +182,23 @@ const itemArb: fc.Arbitrary<Item> = fc.oneof(
     decimals: fc.integer({ min: 0, max: 4 }),
   }),
   fc.record({ kind: fc.constant('i' as const), key: fc.oneof(fc.constant('ntc'), extraKey), value: int32 }),
-  fc.record({ kind: fc.constant('f' as const), key: fc.oneof(fc.constantFrom('chg', 'flt'), extraKey), on: fc.boolean() }),
+  fc.record({
+    kind: fc.constant('f' as const),
+    key: fc.oneof(fc.constantFrom('chg', 'flt'), extraKey),
+    on: fc.boolean(),
+  }),
   fc.oneof(
-    fc.record({ kind: fc.constant('w' as const), key: fc.constant('src'), word: fc.constantFrom('panel', 'adapter', 'none') }),
+    fc.record({
+      kind: fc.constant('w' as const),
+      key: fc.constant('src'),
+      word: fc.constantFrom('panel', 'adapter', 'none'),
+    }),
     fc.record({ kind: fc.constant('w' as const), key: extraKey, word }),
   ),
-  fc.record({ kind: fc.constant('x' as const), key: fc.oneof(fc.constantFrom('vbat', 'temp', 'ntc'), extraKey) }),
+  fc.record({
+    kind: fc.constant('x' as const),
+    key: fc.oneof(fc.constantFrom('vbat', 'temp', 'ntc'), extraKey),
+  }),
 );
 
 const requestArb: fc.Arbitrary<Request> = fc
@@ -263,7 +274,10 @@ test('lines at Taperline 4096-byte limit: sent whole when they fit, refused (nev
     }),
     { numRuns: 150 },
   );
-  assert.ok(sent > 0 && refused > 0, `both sides of the limit were reached (${sent} sent, ${refused} refused)`);
+  assert.ok(
+    sent > 0 && refused > 0,
+    `both sides of the limit were reached (${sent} sent, ${refused} refused)`,
+  );
 });
 
 test('the start-up line carries the board id and firmware version as "# board=<id> fw=<version>"', async () => {

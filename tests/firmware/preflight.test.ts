@@ -13,7 +13,10 @@ import { join, resolve } from 'node:path';
 const script = resolve(__dirname, '..', 'preflight.mjs');
 
 test('with every system tool installed the preflight passes silently', () => {
-  const r = spawnSync(process.execPath, [script], { encoding: 'utf8', env: { ...process.env, TAPERLINE_PREFLIGHT_INSTALL: '0' } });
+  const r = spawnSync(process.execPath, [script], {
+    encoding: 'utf8',
+    env: { ...process.env, TAPERLINE_PREFLIGHT_INSTALL: '0' },
+  });
   assert.equal(r.status, 0, r.stdout + r.stderr);
   assert.equal(r.stdout + r.stderr, '');
 });
@@ -31,7 +34,10 @@ test('with the tools hidden from PATH it stops with one line naming them and the
     assert.equal(r.stdout, '', 'nothing was installed');
     const lines = r.stderr.split('\n').filter((l) => l !== '');
     assert.equal(lines.length, 1, r.stderr);
-    assert.match(lines[0], /^preflight: the tests need system tools that are missing: socat, .*avr-gcc \(gcc-avr\).*simavr/);
+    assert.match(
+      lines[0],
+      /^preflight: the tests need system tools that are missing: socat, .*avr-gcc \(gcc-avr\).*simavr/,
+    );
     assert.match(lines[0], /Install them with: sudo apt-get install -y socat .*gcc-avr.* simavr$/);
   } finally {
     rmSync(dir, { recursive: true, force: true });

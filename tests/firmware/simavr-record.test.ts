@@ -35,22 +35,32 @@ interface Row {
 function script(): Row[] {
   const rows: Row[] = [];
   const ntcAt = (c: number) => Math.round(10000 * Math.exp(3435 * (1 / (c + 273.15) - 1 / 298.15)));
-  for (let s = 0; s < 40; s++) rows.push({ vbatMv: 5600 + 5 * s, ibatMa: 100, ntcOhm: ntcAt(25), charging: true, fault: false });
+  for (let s = 0; s < 40; s++)
+    rows.push({ vbatMv: 5600 + 5 * s, ibatMa: 100, ntcOhm: ntcAt(25), charging: true, fault: false });
   for (let s = 0; s < 120; s++)
-    rows.push({ vbatMv: 6400 + Math.round((1900 * s) / 120), ibatMa: 1000, ntcOhm: ntcAt(25 + s / 40), charging: true, fault: false });
+    rows.push({
+      vbatMv: 6400 + Math.round((1900 * s) / 120),
+      ibatMa: 1000,
+      ntcOhm: ntcAt(25 + s / 40),
+      charging: true,
+      fault: false,
+    });
   for (let s = 0; s < 120; s++)
-    rows.push({ vbatMv: 8400, ibatMa: Math.round(1000 * Math.exp(-s / 45)), ntcOhm: ntcAt(28 - s / 60), charging: true, fault: false });
-  for (let s = 0; s < 50; s++) rows.push({ vbatMv: 8350, ibatMa: 0, ntcOhm: ntcAt(26), charging: false, fault: false });
+    rows.push({
+      vbatMv: 8400,
+      ibatMa: Math.round(1000 * Math.exp(-s / 45)),
+      ntcOhm: ntcAt(28 - s / 60),
+      charging: true,
+      fault: false,
+    });
+  for (let s = 0; s < 50; s++)
+    rows.push({ vbatMv: 8350, ibatMa: 0, ntcOhm: ntcAt(26), charging: false, fault: false });
   return rows;
 }
 
 // The sketch's wiring: 15 k / 10 k divider, amplifier 1 mV per mA, 10 k pull-up to the NTC.
 function pinsMv(r: Row): [number, number, number] {
-  return [
-    Math.round((r.vbatMv * 10) / 25),
-    r.ibatMa,
-    Math.round((VREF_MV * r.ntcOhm) / (r.ntcOhm + 10000)),
-  ];
+  return [Math.round((r.vbatMv * 10) / 25), r.ibatMa, Math.round((VREF_MV * r.ntcOhm) / (r.ntcOhm + 10000))];
 }
 
 // simavr's ADC model, measured with this harness: counts = floor(mV x 1023 / Vref), clipped
@@ -81,7 +91,10 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   make(['avr', 'sim'], { SKETCH_DEFS: '-DBOARD_ID=\\"TC-0007\\"' }, BUILD);
   const rows = script();
   const scriptFile = join(dir, 'charge.txt');
-  writeFileSync(scriptFile, rows.map((r) => [...pinsMv(r), r.charging ? 0 : 1, r.fault ? 0 : 1].join(' ')).join('\n') + '\n');
+  writeFileSync(
+    scriptFile,
+    rows.map((r) => [...pinsMv(r), r.charging ? 0 : 1, r.fault ? 0 : 1].join(' ')).join('\n') + '\n',
+  );
   const uartLog = join(dir, 'uart.log');
   const profile = join(dir, 'profile.json');
   writeFileSync(
@@ -99,9 +112,13 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   );
 
   // 50 times real time: 330 s of charge in under 7 s.
-  const harness = spawn(buildPath(BUILD, 'sim', 'charge_harness'), [buildPath(BUILD, 'avr', 'ChargerAvr.elf'), scriptFile, '50', uartLog], {
-    stdio: ['pipe', 'pipe', 'pipe'],
-  });
+  const harness = spawn(
+    buildPath(BUILD, 'sim', 'charge_harness'),
+    [buildPath(BUILD, 'avr', 'ChargerAvr.elf'), scriptFile, '50', uartLog],
+    {
+      stdio: ['pipe', 'pipe', 'pipe'],
+    },
+  );
   children.push(harness);
   let harnessOut = '';
   harness.stderr.on('data', (d: Buffer) => (harnessOut += d.toString()));
@@ -119,7 +136,20 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   const db = join(dir, 'runs.sqlite');
   const rec = spawn(
     process.execPath,
-    ['--import', 'tsx', join(repo, 'main', 'cli', 'main.ts'), 'record', '--port', ptyPath, '--db', db, '--profile', profile, '--status-every', '1'],
+    [
+      '--import',
+      'tsx',
+      join(repo, 'main', 'cli', 'main.ts'),
+      'record',
+      '--port',
+      ptyPath,
+      '--db',
+      db,
+      '--profile',
+      profile,
+      '--status-every',
+      '1',
+    ],
     { cwd: repo, stdio: ['ignore', 'pipe', 'pipe'] },
   );
   children.push(rec);
@@ -140,7 +170,11 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   await new Promise((res) => setTimeout(res, 2000));
   rec.kill('SIGTERM');
   await new Promise((res) => rec.once('exit', res));
-  assert.match(recOut, new RegExp(`run 1 closed as stopped, ${rows.length + 1} lines \\(0 rejected\\)`), recOut.slice(-800));
+  assert.match(
+    recOut,
+    new RegExp(`run 1 closed as stopped, ${rows.length + 1} lines \\(0 rejected\\)`),
+    recOut.slice(-800),
+  );
   harness.stdin.end(); // unplug the board
   assert.equal(await harnessDone, 0, harnessOut);
 
@@ -155,7 +189,11 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
       raw.map((l) => l.text),
       sentLines,
     );
-    assert.deepEqual(raw.map((l) => l.kind), ['firmware', ...rows.map(() => 'sample')], 'no rejected line');
+    assert.deepEqual(
+      raw.map((l) => l.kind),
+      ['firmware', ...rows.map(() => 'sample')],
+      'no rejected line',
+    );
     assert.equal(runs[0].lines, rows.length + 1);
     // Values exact.
     const samples = reader.allSamples(runId);
@@ -170,10 +208,16 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
       assert.equal(s.chg, want.chg, at);
       assert.equal(s.flt, want.flt, at);
       // The wiring arithmetic is right: within two ADC steps of the scripted pack.
-      assert.ok(Math.abs(s.vbatV! * 1000 - rows[k].vbatMv) <= 2 * (12500 / 1024) + 1, `${at} vs ${rows[k].vbatMv} mV`);
+      assert.ok(
+        Math.abs(s.vbatV! * 1000 - rows[k].vbatMv) <= 2 * (12500 / 1024) + 1,
+        `${at} vs ${rows[k].vbatMv} mV`,
+      );
     });
     // Phases as scripted.
-    const phases = reader.events(runId).filter((e) => e.type === 'phase').map((e) => (e as { phase: string }).phase);
+    const phases = reader
+      .events(runId)
+      .filter((e) => e.type === 'phase')
+      .map((e) => (e as { phase: string }).phase);
     assert.deepEqual(phases, ['precondition', 'cc', 'cv', 'done'], JSON.stringify(reader.events(runId)));
   } finally {
     reader.close();
