@@ -175,12 +175,9 @@ TL__OUTLINE static void tl__fixed(tl_line *l, uint32_t mag, uint8_t neg, uint8_t
     mag /= 10u;
   } while (mag);
   top = n > drop + keep ? n : (uint8_t)(drop + keep + 1); /* at least one digit before the point */
-  if (neg) /* a value that rounds to zero prints without a sign */
-    for (i = drop; i < n; i++)
-      if (d[i] != '0') {
-        tl__put(l, '-');
-        break;
-      }
+  /* A value that rounds to zero prints without a sign: then no digit is left above the
+   * dropped ones, or the only digit is the 0 of a zero. */
+  if (neg && n > drop && d[n - 1] != '0') tl__put(l, '-');
   for (i = top; i-- > drop;) {
     if (i + 1 == drop + keep && keep) tl__put(l, '.');
     tl__put(l, i < n ? d[i] : '0');
@@ -200,25 +197,25 @@ static inline void tl_begin(tl_line *l) {
   if (l->shape == TL_JSON) tl__put(l, '{');
 }
 
+/* One signed number: the key, then +/-|v| / 10^drop with `keep` decimals. */
+TL__OUTLINE static void tl__num(tl_line *l, const char *key, uint8_t flash, int32_t v, uint8_t drop, uint8_t keep) {
+  if (tl__key(l, key, flash)) tl__fixed(l, tl__mag(v), v < 0, drop, keep);
+}
+
 /* A value given in thousandths (mV, mA, m°C, ms) printed in the base unit with
  * `decimals` digits after the point (0..3), rounded half away from zero. */
-TL__OUTLINE static void tl__milli(tl_line *l, const char *key, uint8_t flash, int32_t milli, uint8_t decimals) {
-  if (decimals > 3) decimals = 3;
-  if (tl__key(l, key, flash)) tl__fixed(l, tl__mag(milli), milli < 0, (uint8_t)(3 - decimals), decimals);
-}
 static inline void tl_milli(tl_line *l, const char *key, int32_t milli, uint8_t decimals) {
-  tl__milli(l, key, 0, milli, decimals);
+  if (decimals > 3) decimals = 3;
+  tl__num(l, key, 0, milli, (uint8_t)(3 - decimals), decimals);
 }
 static inline void tl_milli_P(tl_line *l, const char *key, int32_t milli, uint8_t decimals) {
-  tl__milli(l, key, 1, milli, decimals);
+  if (decimals > 3) decimals = 3;
+  tl__num(l, key, 1, milli, (uint8_t)(3 - decimals), decimals);
 }
 
 /* A whole number as it is: raw ADC counts, a cycle count. */
-TL__OUTLINE static void tl__int(tl_line *l, const char *key, uint8_t flash, int32_t value) {
-  if (tl__key(l, key, flash)) tl__fixed(l, tl__mag(value), value < 0, 0, 0);
-}
-static inline void tl_int(tl_line *l, const char *key, int32_t value) { tl__int(l, key, 0, value); }
-static inline void tl_int_P(tl_line *l, const char *key, int32_t value) { tl__int(l, key, 1, value); }
+static inline void tl_int(tl_line *l, const char *key, int32_t value) { tl__num(l, key, 0, value, 0, 0); }
+static inline void tl_int_P(tl_line *l, const char *key, int32_t value) { tl__num(l, key, 1, value, 0, 0); }
 #define tl_adc tl_int
 #define tl_adc_P tl_int_P
 
@@ -228,12 +225,9 @@ static inline void tl_time_ms(tl_line *l, uint32_t ms) {
   if (tl__key(l, key, 1)) tl__fixed(l, ms, 0, 0, 3);
 }
 
-/* A status pin: 1 when `on` is non-zero, else 0. */
-TL__OUTLINE static void tl__flag(tl_line *l, const char *key, uint8_t flash, int on) {
-  if (tl__key(l, key, flash)) tl__put(l, on ? '1' : '0');
-}
-static inline void tl_flag(tl_line *l, const char *key, int on) { tl__flag(l, key, 0, on); }
-static inline void tl_flag_P(tl_line *l, const char *key, int on) { tl__flag(l, key, 1, on); }
+/* A status pin: 1 when `on` is non-zero, else 0 (the number writer is reused: smaller). */
+static inline void tl_flag(tl_line *l, const char *key, int on) { tl__num(l, key, 0, on != 0, 0, 0); }
+static inline void tl_flag_P(tl_line *l, const char *key, int on) { tl__num(l, key, 1, on != 0, 0, 0); }
 
 /* A one-word text value such as src=panel (letters, digits, `_`, `.`, `-`). */
 TL__OUTLINE static void tl__word(tl_line *l, const char *key, uint8_t kflash, const char *word, uint8_t wflash) {
@@ -266,22 +260,15 @@ static inline uint8_t tl_checksum(const char *s, uint16_t n) {
 /* Ends the line: `*HH`, `\n`, NUL. Returns the bytes to send (`\n` included), or 0 when
  * the line must not be sent (see tl_error). */
 TL__OUTLINE static uint16_t tl_end(tl_line *l) {
-  uint8_t x;
-  if (l->state & TL__HEADER_PASS) {
-    if (l->fields < 2) l->state |= TL_ERR_EMPTY; /* a header needs two names to read as one */
-  } else if (l->shape == TL_KV && l->fields == 0) {
+  uint8_t x, i;
+  if (l->state & TL__HEADER_PASS ? l->fields < 2 /* a header needs two names to read as one */
+                                 : l->shape == TL_KV && l->fields == 0)
     l->state |= TL_ERR_EMPTY;
-  }
   if (l->shape == TL_JSON) tl__put(l, '}');
   x = tl_checksum(l->buf, l->len);
   tl__put(l, '*');
-  tl__put(l, tl__hex((uint8_t)(x >> 4)));
-  tl__put(l, tl__hex((uint8_t)(x & 15u)));
-  if (l->state & TL__ERRORS) {
-    l->len = 0;
-    if (l->cap) l->buf[0] = 0;
-    return 0;
-  }
+  for (i = 0; i < 2; i++, x = (uint8_t)(x << 4)) tl__put(l, tl__hex((uint8_t)(x >> 4)));
+  if (l->state & TL__ERRORS) return l->len = 0;
   l->buf[l->len++] = '\n'; /* room kept by tl_init */
   l->buf[l->len] = 0;
   if (l->state & TL__HEADER_PASS) l->state |= TL__HEADER_SENT | TL__WAS_HEADER;
