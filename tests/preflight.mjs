@@ -19,6 +19,7 @@ const NEEDS = [
   ['ser2net', { cmd: 'ser2net', dirs: ['/usr/sbin'] }, 'ser2net'],
   ['gcc', { cmd: 'gcc' }, 'gcc'],
   ['make', { cmd: 'make' }, 'make'],
+  ['python3', { cmd: 'python3' }, 'python3'],
   ['pkg-config', { cmd: 'pkg-config' }, 'pkg-config'],
   ['avr-gcc', { cmd: 'avr-gcc' }, 'gcc-avr'],
   ['avr-libc', { file: '/usr/lib/avr/include/avr/io.h' }, 'avr-libc'],
