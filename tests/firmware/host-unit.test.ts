@@ -14,3 +14,9 @@ test('the C unit tests of taperline_line.h build warning-free and pass', () => {
   const m = /^(\d+) checks, 0 failed$/m.exec(r.stdout);
   assert.ok(m !== null && Number(m[1]) > 50, r.stdout);
 });
+
+test('the example sketches compile for the ATmega328P against the Arduino AVR core', () => {
+  // ChargerAvr is built and linked (it also runs in simavr-record.test.ts); ChargerWifi is
+  // compiled for syntax and types against a declaration-only WiFi.h.
+  make(['avr', 'wifi-check'], {}, 'build-examples');
+});
