@@ -20,6 +20,8 @@ export interface LineOutcome {
 export interface Pipeline {
   readonly profile: ResolvedProfile;
   pushLine(text: string, rxS: number, tooLong?: boolean): LineOutcome;
+  /** The same for a line still in bytes, bytes[from, to) (replay's fast path). */
+  pushBytes(bytes: Uint8Array, from: number, to: number, rxS: number, tooLong?: boolean): LineOutcome;
   /** Time passes with no line (live sources): silence checks on the receive clock. */
   tick(rxS: number): EngineEvent[];
   /** The source knows telemetry was interrupted from startRxS (endRxS null while it lasts). */
@@ -41,20 +43,26 @@ export function createPipeline(profile: ResolvedProfile): Pipeline {
   let lines = 0;
   let rejectedTotal = 0;
 
+  function accept(result: LineResult, rxS: number): LineOutcome {
+    if (result.kind !== 'blank') lines++;
+    if (result.kind === 'rejected') {
+      rejectedTotal++;
+      rejected[result.reason] = (rejected[result.reason] ?? 0) + 1;
+      return { result, sample: null, events: NO_EVENTS };
+    }
+    if (result.kind !== 'sample') return { result, sample: null, events: NO_EVENTS };
+    const sample = result.sample as TimedSample;
+    sample.t = clock.place(rxS, sample.deviceS);
+    return { result, sample, events: engine.push(sample) };
+  }
+
   return {
     profile,
     pushLine(text, rxS, tooLong = false) {
-      const result = parser.parse(text, rxS, tooLong);
-      if (result.kind !== 'blank') lines++;
-      if (result.kind === 'rejected') {
-        rejectedTotal++;
-        rejected[result.reason] = (rejected[result.reason] ?? 0) + 1;
-        return { result, sample: null, events: NO_EVENTS };
-      }
-      if (result.kind !== 'sample') return { result, sample: null, events: NO_EVENTS };
-      const sample = result.sample as TimedSample;
-      sample.t = clock.place(rxS, sample.deviceS);
-      return { result, sample, events: engine.push(sample) };
+      return accept(parser.parse(text, rxS, tooLong), rxS);
+    },
+    pushBytes(bytes, from, to, rxS, tooLong = false) {
+      return accept(parser.parseBytes(bytes, from, to, rxS, tooLong), rxS);
     },
     tick(rxS) {
       return clock.hasStarted ? engine.tick(clock.at(rxS)) : NO_EVENTS;

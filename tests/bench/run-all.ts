@@ -13,6 +13,7 @@ const BENCHES = [
   'record-bench.ts',
   'chart-bench.ts',
   'firmware-size-bench.ts',
+  'unplug-bench.ts',
 ];
 const extra = process.argv.slice(2);
 let failed = 0;
