@@ -107,10 +107,11 @@ class Line:
                     return None
                 self.header_sent = True
                 out = header
-            err, row = self._finish(",".join(t if t is not None else "" for _, t in items), False)
+            cells = [t if t is not None else "" for _, t in items]
+            err, row = self._finish(",".join(cells), not any(cells))
         elif self.shape == JSON:
-            body = ",".join('"%s":%s' % (k, t) for k, t in items if t is not None)
-            err, row = self._finish("{" + body + "}", False)
+            pairs = ['"%s":%s' % (k, t) for k, t in items if t is not None]
+            err, row = self._finish("{" + ",".join(pairs) + "}", not pairs)
         else:
             pairs = ["%s=%s" % (k, t) for k, t in items if t is not None]
             err, row = self._finish(" ".join(pairs), not pairs)

@@ -73,7 +73,10 @@ function expectedOutput(r: Request): string[] {
   if (r.shape === 'csv') {
     const header = finish(r.items.map((i) => i.key).join(','), r.items.length < 2);
     if (header.startsWith('!')) return [header];
-    const row = finish(r.items.map((i) => valueText(i, 'csv') ?? '').join(','), false);
+    const row = finish(
+      r.items.map((i) => valueText(i, 'csv') ?? '').join(','),
+      r.items.every((i) => i.kind === 'x'),
+    );
     return [header, row];
   }
   if (r.shape === 'json') {
@@ -81,7 +84,12 @@ function expectedOutput(r: Request): string[] {
       .filter((i) => i.kind !== 'x')
       .map((i) => `"${i.key}":${valueText(i, 'json')}`)
       .join(',')}}`;
-    return [finish(body, false)];
+    return [
+      finish(
+        body,
+        r.items.every((i) => i.kind === 'x'),
+      ),
+    ];
   }
   const pairs = r.items.filter((i) => i.kind !== 'x').map((i) => `${i.key}=${valueText(i, 'kv')}`);
   return [finish(pairs.join(' '), pairs.length === 0)];
