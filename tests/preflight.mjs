@@ -64,7 +64,8 @@ if (absent.length === 0) process.exit(0);
 const packages = [...new Set(absent.map(([, , pkg]) => pkg))];
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 const mayInstall = process.env.TAPERLINE_PREFLIGHT_INSTALL !== '0';
-const aptGet = '/usr/bin/apt-get';
+// TAPERLINE_APT_GET lets the preflight's own test watch the calls without installing anything.
+const aptGet = process.env.TAPERLINE_APT_GET ?? '/usr/bin/apt-get';
 
 if (isRoot && mayInstall && isExecutable(aptGet)) {
   console.log(`preflight: installing ${packages.join(' ')} with apt-get`);

@@ -1,12 +1,13 @@
 /**
  * The test preflight (tests/preflight.mjs): on this machine every tool is there and it
  * passes; with the tools hidden from PATH and installing forbidden, it stops with one line
- * naming what is missing and the apt-get command that installs it.
+ * naming what is missing and the apt-get command that installs it; as root it calls apt-get
+ * (update once, then install the missing packages).
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, symlinkSync } from 'node:fs';
+import { chmodSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 
@@ -43,3 +44,37 @@ test('with the tools hidden from PATH it stops with one line naming them and the
     rmSync(dir, { recursive: true, force: true });
   }
 });
+
+test(
+  'as root it runs apt-get update once, then installs exactly the missing packages',
+  { skip: process.getuid?.() !== 0 ? 'needs root' : false },
+  () => {
+    const dir = mkdtempSync(join(tmpdir(), 'taperline-preflight-'));
+    try {
+      symlinkSync(process.execPath, join(dir, 'node'));
+      // Stands in for apt-get (a real install needs the network and changes the machine): it
+      // only writes down how it was called.
+      const log = join(dir, 'apt.log');
+      const fake = join(dir, 'apt-get');
+      writeFileSync(fake, `#!/bin/sh\necho "$DEBIAN_FRONTEND $*" >> ${log}\n`);
+      chmodSync(fake, 0o755);
+      const r = spawnSync(join(dir, 'node'), [script], {
+        encoding: 'utf8',
+        env: { PATH: dir, TAPERLINE_APT_GET: fake },
+      });
+      const calls = readFileSync(log, 'utf8').trim().split('\n');
+      assert.equal(calls.length, 2, calls.join('\n'));
+      assert.equal(calls[0], 'noninteractive update -qq');
+      assert.match(
+        calls[1],
+        /^noninteractive install -y -qq --no-install-recommends socat udev xvfb gcc make python3 pkg-config gcc-avr simavr$/,
+      );
+      // Nothing was really installed, so it still says what is missing, in one line.
+      assert.equal(r.status, 1);
+      assert.match(r.stdout, /^preflight: installing socat .* simavr with apt-get$/m);
+      assert.equal(r.stderr.trim().split('\n').length, 1, r.stderr);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  },
+);
