@@ -7,9 +7,17 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawnSync } from 'node:child_process';
-import { chmodSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import {
+  chmodSync,
+  existsSync,
+  mkdtempSync,
+  readFileSync,
+  rmSync,
+  symlinkSync,
+  writeFileSync,
+} from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 
 const script = resolve(__dirname, '..', 'preflight.mjs');
 
@@ -73,6 +81,39 @@ test(
       assert.equal(r.status, 1);
       assert.match(r.stdout, /^preflight: installing socat .* simavr with apt-get$/m);
       assert.equal(r.stderr.trim().split('\n').length, 1, r.stderr);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  },
+);
+
+// npm's own script, found beside the node that runs the tests (the usual install layout).
+const npmCli = join(dirname(process.execPath), '..', 'lib', 'node_modules', 'npm', 'bin', 'npm-cli.js');
+
+test(
+  '`npm test` with the tools hidden from PATH stops at the preflight, at once, with its one line',
+  { skip: existsSync(npmCli) ? false : `npm not found at ${npmCli}` },
+  () => {
+    const dir = mkdtempSync(join(tmpdir(), 'taperline-preflight-'));
+    try {
+      // node, and the shell npm runs scripts with; none of the tools the tests need.
+      symlinkSync(process.execPath, join(dir, 'node'));
+      symlinkSync('/bin/sh', join(dir, 'sh'));
+      const r = spawnSync(join(dir, 'node'), [npmCli, 'test'], {
+        cwd: resolve(__dirname, '..', '..'),
+        encoding: 'utf8',
+        env: { PATH: dir, TAPERLINE_PREFLIGHT_INSTALL: '0', npm_config_update_notifier: 'false' },
+      });
+      assert.notEqual(r.status, 0);
+      const preflight = r.stderr.split('\n').filter((l) => l.startsWith('preflight:'));
+      assert.equal(preflight.length, 1, r.stderr);
+      assert.match(preflight[0], /missing: socat, .*Install them with: sudo apt-get install -y socat /);
+      // npm echoes the whole script line first; a later step would announce itself as it starts.
+      assert.doesNotMatch(
+        r.stdout + r.stderr,
+        /ENOENT|> taperline@\S+ (typecheck|lint|test:)/,
+        'nothing after the preflight ran',
+      );
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
