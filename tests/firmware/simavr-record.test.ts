@@ -235,3 +235,30 @@ test('key=value: a charge run by the sketch in simavr is recorded by `taperline 
 test('CSV: the same charge, header once, recorded line for line, value for value', () =>
   recordCharge('TL_CSV'));
 test('JSON: the same charge recorded line for line, value for value', () => recordCharge('TL_JSON'));
+
+test('a line too long for the board buffer is never sent in part: the board says so in a # line', async () => {
+  // A 24-byte buffer on the target: too small for any of the sketch's lines.
+  const BUILD = 'build-sim-small';
+  make(['avr', 'sim'], { SKETCH_DEFS: '-DLINE_BYTES=24' }, BUILD);
+  const scriptFile = join(dir, 'charge-small.txt');
+  writeFileSync(scriptFile, '3000 1000 2500 0 1\n'.repeat(3));
+  const uartLog = join(dir, 'uart-small.log');
+  const harness = spawn(
+    buildPath(BUILD, 'sim', 'charge_harness'),
+    [buildPath(BUILD, 'avr', 'ChargerAvr.elf'), scriptFile, '0', uartLog],
+    { stdio: ['pipe', 'pipe', 'pipe'] },
+  );
+  children.push(harness);
+  let out = '';
+  harness.stdout.on('data', (d: Buffer) => (out += d.toString()));
+  harness.stdin.write('go\n');
+  await until(() => /^done /m.test(out), 60_000, `the harness: ${out}`);
+  harness.stdin.end();
+  await new Promise((res) => harness.once('exit', res));
+  // The start-up line (26 bytes with its newline and NUL) does not fit either: not sent.
+  assert.deepEqual(readFileSync(uartLog, 'utf8').split('\n').slice(0, -1), [
+    '# line not sent, error 1',
+    '# line not sent, error 1',
+    '# line not sent, error 1',
+  ]);
+});
