@@ -125,7 +125,13 @@ export function sensorFaultMessage(detail: string): string {
   );
 }
 
-export function contactMessage(openings: number, steps: number, windowS: number, lastT: number, critical: boolean): string {
+export function contactMessage(
+  openings: number,
+  steps: number,
+  windowS: number,
+  lastT: number,
+  critical: boolean,
+): string {
   const parts: string[] = [];
   if (openings > 0) parts.push(`the current dropped to zero and came back ${openings} time(s)`);
   if (steps > 0) parts.push(`the pack voltage stepped ${steps} time(s) with no current step`);

@@ -1,5 +1,5 @@
 /**
- * Alarm bookkeeping (PROTOCOL section 3): each code has a level, a raise delay and a clear
+ * Alarm bookkeeping (the project's protocol): each code has a level, a raise delay and a clear
  * delay. A condition must hold for its raise delay of sample time before the alarm is raised,
  * once per episode; the clear condition (with hysteresis, decided by the caller) must hold for
  * the clear delay before `alarm-clear`. The engine decides the conditions; this only debounces.

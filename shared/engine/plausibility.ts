@@ -1,5 +1,5 @@
 /**
- * Physically impossible values (PROTOCOL: reject reason `implausible`): a line carrying one is
+ * Physically impossible values (protocol: reject reason `implausible`): a line carrying one is
  * rejected, counted and kept in the raw record, and never reaches the engine's integrals.
  * The limits are wide on purpose: an implausible value is a corrupt line (noise on a long
  * cable, a unit the device left out), never a real fault, which must reach the alarms.

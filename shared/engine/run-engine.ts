@@ -1,5 +1,5 @@
 /**
- * The run engine: samples in, phase / alarm / gap events and state out (PROTOCOL section 3).
+ * The run engine: samples in, phase / alarm / gap events and state out (the project's protocol).
  * It composes the phase machine, the alarm book and the metrics; the per-sample path works on
  * numbers in place and allocates only the events it returns.
  */
@@ -327,7 +327,16 @@ class Engine implements RunEngine {
     }
     this.ovLimitVPerCell = ovV;
     this.act(OVERVOLTAGE, t, book.step(OVERVOLTAGE, t, vPerCell > ovV, vPerCell < ovClearV));
-    this.act(SENSOR_FAULT, t, book.step(SENSOR_FAULT, t, charging && this.blindDetail !== '', this.blindDetail === '' && tempC === tempC));
+    this.act(
+      SENSOR_FAULT,
+      t,
+      book.step(
+        SENSOR_FAULT,
+        t,
+        charging && this.blindDetail !== '',
+        this.blindDetail === '' && tempC === tempC,
+      ),
+    );
     this.watchContact(t, charging);
 
     const vinV = v.vinV;
@@ -438,13 +447,7 @@ class Engine implements RunEngine {
   /** Contact evidence from the shared detector; raise, escalate and clear `contact`. */
   private watchContact(t: number, charging: boolean): void {
     const v = this.view;
-    const seen = this.contact.feed(
-      t,
-      v.vbatV,
-      v.ibatA,
-      Math.max(5, 3 * this.typicalDtS),
-      v.sourceAbsent(),
-    );
+    const seen = this.contact.feed(t, v.vbatV, v.ibatA, Math.max(5, 3 * this.typicalDtS), v.sourceAbsent());
     const episodes = this.contactEpisodes;
     if (seen !== CONTACT_NONE && charging) {
       if (seen === CONTACT_OPENING) this.contactOpenings++;
