@@ -59,7 +59,7 @@ export class RunTimeBase {
 
   /** Lines whose device time was out of order or corrupt (placed without elapsed time). */
   glitches = 0;
-  /** Reboots and clock jumps the device confirmed (bridged). */
+  /** Reboots the device confirmed (its clock went back and continued from there; bridged). */
   resets = 0;
   /** PLACED_OK, PLACED_GLITCH or PLACED_RESET for the last placed line. */
   lastKind = PLACED_OK;
@@ -118,10 +118,13 @@ export class RunTimeBase {
       fromCandS >= 0 &&
       fromCandS <= Math.max(this.allowedStepS(rxS - this.candidateRxS), candStepS)
     ) {
-      // The device confirmed the candidate's clock: a reboot, or its clock moved on.
+      // The device confirmed the candidate's clock: a reboot (back), or its clock moved on (a hole
+      // in a file; not counted, the gap says it).
       this.glitches--;
-      this.resets++;
-      this.lastKind = PLACED_RESET;
+      if (candS < this.lastDeviceS) {
+        this.resets++;
+        this.lastKind = PLACED_RESET;
+      }
       const candT = this.lastT + this.bridgeS(candS, this.candidateRxS);
       this.deviceOffsetS = candT - (candS - this.firstDeviceS);
       this.candidateDeviceS = NaN;
