@@ -1,5 +1,5 @@
 /**
- * Alarm bookkeeping (the project's protocol): each code has a level, a raise delay and a clear
+ * Alarm bookkeeping (the protocol): each code has a level, a raise delay and a clear
  * delay. A condition must hold for its raise delay of sample time before the alarm is raised,
  * once per episode; the clear condition (with hysteresis, decided by the caller) must hold for
  * the clear delay before `alarm-clear`. The engine decides the conditions; this only debounces.
@@ -76,6 +76,11 @@ export class AlarmBook {
   /** The raised alarm i, or null. */
   get(i: number): AlarmEvent | null {
     return this.active[i];
+  }
+
+  /** The raising condition of alarm i holds and waits out its raise delay. */
+  isPending(i: number): boolean {
+    return this.active[i] === null && this.raiseSince[i] === this.raiseSince[i];
   }
 
   isActive(i: number): boolean {

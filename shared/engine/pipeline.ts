@@ -101,13 +101,11 @@ export function createPipeline(profile: ResolvedProfile, options: PipelineOption
     },
     state: () => engine.state(),
     summary() {
-      return {
-        ...engine.summary(),
-        lines,
-        rejected: rejectedTotal,
-        timeGlitches: clock.glitches,
-        clockResets: clock.resets,
-      };
+      const out: RunSummary = { ...engine.summary(), lines, rejected: rejectedTotal };
+      // Said only when there were any, so a clean run reads the same from every source.
+      if (clock.glitches > 0) out.timeGlitches = clock.glitches;
+      if (clock.resets > 0) out.clockResets = clock.resets;
+      return out;
     },
     rejectCounts: () => ({ ...rejected }),
   };

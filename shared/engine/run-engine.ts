@@ -1,5 +1,5 @@
 /**
- * The run engine: samples in, phase / alarm / gap events and state out (the project's protocol).
+ * The run engine: samples in, phase / alarm / gap events and state out (the protocol).
  * It composes the phase machine, the alarm book and the metrics; the per-sample path works on
  * numbers in place and allocates only the events it returns.
  */
@@ -327,14 +327,16 @@ class Engine implements RunEngine {
     }
     this.ovLimitVPerCell = ovV;
     this.act(OVERVOLTAGE, t, book.step(OVERVOLTAGE, t, vPerCell > ovV, vPerCell < ovClearV));
+    // Blind while charging; a charger that stops because of the blind sensor does not end the episode.
+    const blind = this.blindDetail !== '';
     this.act(
       SENSOR_FAULT,
       t,
       book.step(
         SENSOR_FAULT,
         t,
-        charging && this.blindDetail !== '',
-        this.blindDetail === '' && tempC === tempC,
+        blind && (charging || book.isPending(SENSOR_FAULT)),
+        !blind && tempC === tempC,
       ),
     );
     this.watchContact(t, charging);
@@ -502,7 +504,8 @@ class Engine implements RunEngine {
     const at = t > this.lastT ? t : this.lastT;
     const charging = isChargingPhase(this.machine.phase) || this.view.ibatA >= this.lim.flowOnA;
     this.blindDetail = detail;
-    this.act(SENSOR_FAULT, at, this.book.step(SENSOR_FAULT, at, charging, false));
+    const book = this.book;
+    this.act(SENSOR_FAULT, at, book.step(SENSOR_FAULT, at, charging || book.isPending(SENSOR_FAULT), false));
     return this.out ?? NO_EVENTS;
   }
 

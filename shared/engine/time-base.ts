@@ -140,25 +140,21 @@ export class RunTimeBase {
   }
 
   /**
-   * Run time between the last line in step and a confirmed new clock's first line. A host
-   * clock measured it; a file only says the device clock moved on (forward: that much time
-   * passed, a hole) or restarted (back: one typical interval, all a file can tell).
+   * Run time between the last line in step and a confirmed new clock's first line. Forward,
+   * the device's own clock says how much time passed (a hole; a host clock can lag behind it
+   * when lines were buffered or replayed fast). Back (a reboot), a host clock measured the
+   * bridge; a file can only assume one typical interval.
    */
   private bridgeS(candS: number, candRxS: number): number {
-    const typicalS = this.medianS === this.medianS ? this.medianS : 0;
-    if (this.hostClock) {
-      const rxGapS = Math.max(0, candRxS - this.lastDeviceRxS);
-      const deviceGapS = candS - this.lastDeviceS;
-      // Forward and backed by the host clock: the device's own figure; else the host's.
-      return deviceGapS > 0 && deviceGapS <= rxGapS + Math.max(2, 2 * typicalS) ? deviceGapS : rxGapS;
-    }
-    return candS > this.lastDeviceS ? candS - this.lastDeviceS : typicalS;
+    if (candS > this.lastDeviceS) return candS - this.lastDeviceS;
+    if (this.hostClock) return Math.max(0, candRxS - this.lastDeviceRxS);
+    return this.medianS === this.medianS ? this.medianS : 0;
   }
 
   /** Largest step ahead a line may make, given what the receive clock saw pass. */
   private allowedStepS(rxStepS: number): number {
     const m = this.medianS;
-    if (m !== m) return this.hostClock ? Math.max(0, rxStepS) + 2 : FIRST_STEP_LIMIT_S;
+    if (m !== m) return this.hostClock ? Math.max(FIRST_STEP_LIMIT_S, rxStepS + 2) : FIRST_STEP_LIMIT_S;
     const byInterval = JUMP_INTERVALS * m;
     if (!this.hostClock) return byInterval;
     return Math.max(byInterval, Math.max(0, rxStepS) + Math.max(2, 2 * m));

@@ -1,4 +1,4 @@
-/** The run engine's contract: samples in, state and events out (the project's protocol). */
+/** The run engine's contract: samples in, state and events out (the protocol). */
 import type { Sample } from '../telemetry/types';
 
 export type Phase = 'precondition' | 'cc' | 'cv' | 'done' | 'fault' | 'idle';
@@ -108,9 +108,9 @@ export interface RunSummary {
   phaseS: Partial<Record<Phase, number>>;
   lines: number;
   rejected: number;
-  /** Lines whose device time was out of order or corrupt: placed with no elapsed time. */
+  /** Lines whose device time was out of order or corrupt: placed with no elapsed time (absent = none). */
   timeGlitches?: number;
-  /** Device reboots and clock jumps the following lines confirmed (bridged). */
+  /** Device reboots the following lines confirmed, bridged (absent = none). */
   clockResets?: number;
 }
 

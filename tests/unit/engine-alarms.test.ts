@@ -1,5 +1,5 @@
 /**
- * Every alarm code of the project's protocol on synthetic sequences (invented data): raised with its
+ * Every alarm code of the protocol on synthetic sequences (invented data): raised with its
  * level once per episode, debounced, cleared when the condition is gone, with numbers in the message.
  */
 import { test } from 'node:test';
@@ -22,7 +22,7 @@ const only = (events: EngineEvent[], code: string): AlarmEvent => {
   return raised[0];
 };
 
-test('levels: critical only where someone must act (the project's protocol)', () => {
+test('levels: critical only where someone must act (the protocol)', () => {
   const critical = ALARM_CODES.filter((c) => ALARM_RULES[c].level === 'critical').sort();
   assert.deepEqual(critical, [
     'fault-pin',
@@ -125,7 +125,7 @@ test('a pack stuck below the precondition threshold: precondition-timeout (criti
   assert.equal(engine.state().phase, 'fault');
 });
 
-test('with a safety timer the precondition timeout is timerMin/8 (the project's protocol)', () => {
+test('with a safety timer the precondition timeout is timerMin/8 (the protocol)', () => {
   const engine = createRunEngine(li({ timerMin: 80 }));
   const a = only(pushAll(engine, steady(0, 1200, 1, { vbatV: 7.5, ibatA: 0.25 })), 'precondition-timeout');
   assert.equal(a.t, 600); // 80 min / 8 = 10 min
@@ -209,7 +209,7 @@ test('input-low: source at the set point or under the pack is a warning; missing
 });
 
 test('reverse-current below -C/50 with a source present is a warning; without a source it is not raised', () => {
-  // the project's protocol: ibat below −C/50 = −0.05 A for 2.5 Ah.
+  // the protocol: ibat below −C/50 = −0.05 A for 2.5 Ah.
   const engine = createRunEngine(li());
   const a = only(
     pushAll(engine, steady(0, 60, 1, { vbatV: 11.4, ibatA: -0.08, src: 'adapter', vinV: 15 })),
