@@ -23,8 +23,8 @@
 const JUMP_INTERVALS = 8;
 /** Intervals kept for the median. */
 const WINDOW = 31;
-/** The median is recomputed every this many accepted intervals (cheap enough per sample). */
-const RECOMPUTE_EVERY = 8;
+/** The median is recomputed every this many accepted intervals (it moves slowly; keeps the per-line cost low). */
+const RECOMPUTE_EVERY = 32;
 /** Before the interval is known (a file's first lines), a longer step must be confirmed by the next line. */
 const FIRST_STEP_LIMIT_S = 600;
 /** A receive clock below this is a replay's line counter, not epoch seconds. */
@@ -53,6 +53,7 @@ export class RunTimeBase {
   private candidateDeviceS = NaN;
   private candidateRxS = 0;
   private readonly intervals = new Float64Array(WINDOW);
+  private readonly scratch = new Float64Array(WINDOW);
   private intervalCount = 0;
   private sinceRecompute = 0;
   private medianS = NaN;
@@ -173,8 +174,18 @@ export class RunTimeBase {
     if (this.intervalCount < 3) return;
     this.sinceRecompute = 0;
     const n = Math.min(this.intervalCount, WINDOW);
-    const sorted = this.intervals.slice(0, n).sort();
-    this.medianS = sorted[n >> 1];
+    // Insertion sort into a reused buffer: no allocation per line.
+    const a = this.scratch;
+    for (let i = 0; i < n; i++) {
+      const x = this.intervals[i];
+      let j = i - 1;
+      while (j >= 0 && a[j] > x) {
+        a[j + 1] = a[j];
+        j--;
+      }
+      a[j + 1] = x;
+    }
+    this.medianS = a[n >> 1];
   }
 
   /** Run time of a moment with no sample (silence checks, gaps), from the receive clock. */
