@@ -3,6 +3,7 @@
  * alarm is raised, never per sample.
  */
 import type { ResolvedProfile } from '../chemistry/types';
+import { formatRunClock } from './time-format';
 
 const f = (x: number, digits: number): string => (x === x ? x.toFixed(digits) : '?');
 const minutes = (s: number): string => `${Math.round(s / 60)} min`;
@@ -136,7 +137,7 @@ export function contactMessage(
   if (openings > 0) parts.push(`the current dropped to zero and came back ${openings} time(s)`);
   if (steps > 0) parts.push(`the pack voltage stepped ${steps} time(s) with no current step`);
   return (
-    `Intermittent contact: ${parts.join(' and ')} in the last ${minutes(windowS)} (last at ${minutes(lastT)} into the run)` +
+    `Intermittent contact: ${parts.join(' and ')} in the last ${minutes(windowS)} (the last at ${formatRunClock(lastT)})` +
     (critical ? ', and it keeps repeating' : '') +
     '; check the pack connector, crimps and screw terminals for looseness, corrosion or heat, ' +
     'wiggle each while watching the Line feed, and do not leave the charge unattended until it is fixed.'

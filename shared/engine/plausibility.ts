@@ -23,6 +23,11 @@ export interface PlausibilityLimits {
   maxVinV: number;
 }
 
+function sizeKnown(p: ResolvedProfile): boolean {
+  const assumed = p.defaulted ?? [];
+  return !(assumed.includes('capacityAh') && assumed.includes('chargeCurrentA'));
+}
+
 export function plausibilityLimits(p: ResolvedProfile): PlausibilityLimits {
   const vPerCell = Math.max(p.overvoltageVPerCell, p.regulationVPerCell);
   return {
@@ -32,7 +37,9 @@ export function plausibilityLimits(p: ResolvedProfile): PlausibilityLimits {
     maxVbatV: 5 * vPerCell * p.cells,
     // Ten times the charge current or five times the capacity (5C), at least 0.5 A so a sensor
     // offset on a tiny cell is never "impossible" (common practice).
-    maxCurrentA: Math.max(10 * p.chargeCurrentA, 5 * p.capacityAh, 0.5),
+    // Without a stated capacity or charge current (an assumed profile) the pack's size is
+    // unknown: only currents beyond any bench charger, 1 kA, are impossible (common practice).
+    maxCurrentA: sizeKnown(p) ? Math.max(10 * p.chargeCurrentA, 5 * p.capacityAh, 0.5) : 1000,
     // Five times the pack's overvoltage, at least 100 V (common practice: no bench source beyond).
     maxVinV: Math.max(100, 5 * vPerCell * p.cells),
   };
@@ -68,4 +75,4 @@ export function onlyTemperatureImplausible(s: Sample, lim: PlausibilityLimits): 
   return implausibility({ ...s, tempC: undefined }, lim) === null;
 }
 
-const fmt = (x: number): string => (Number.isFinite(x) ? String(x) : String(x));
+const fmt = (x: number): string => String(x);

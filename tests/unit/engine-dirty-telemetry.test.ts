@@ -268,3 +268,13 @@ test('property: injected glitches, holes and impossible values leave Ah and dura
     { numRuns: 60, seed: 20261202 },
   );
 });
+
+test('an assumed profile (no capacity, no charge current) keeps a 10 A charge; only the impossible goes', () => {
+  // What `replay` assumes for a bare log: the pack's size is unknown, so 10 A is plausible.
+  const assumed = profileFromChemistry('li-ion', 3);
+  const pipeline = createPipeline(assumed, { receiveClock: 'lines' });
+  for (let t = 0; t < 20; t++) pipeline.pushLine(`t=${t} vbat=11.40 ibat=10.0`, t);
+  pipeline.pushLine('t=20 vbat=11.40 ibat=1e308', 20);
+  assert.deepEqual(pipeline.rejectCounts(), { implausible: 1 });
+  assert.ok(Math.abs(pipeline.summary().ah - (19 * 10) / 3600) < 1e-9);
+});
