@@ -4,7 +4,13 @@
  */
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { UsageError } from './errors';
-import { readTelemetryLines, streamTelemetryLines, type TimedLine } from './read-lines';
+import {
+  readTelemetryLines,
+  streamTelemetryBytes,
+  streamTelemetryLines,
+  type TimedByteLine,
+  type TimedLine,
+} from './read-lines';
 import { openRecordedRun } from './recorded-run';
 
 export interface LineInput {
@@ -12,6 +18,8 @@ export interface LineInput {
   profile: ResolvedProfile | null;
   /** Fast path: every line, synchronously per chunk. */
   forEach(onLine: (text: string, rxS: number, tooLong: boolean) => void): Promise<void>;
+  /** Faster still for files: every line as bytes (absent for database runs, which hold text). */
+  forEachBytes?: (onLine: TimedByteLine) => Promise<void>;
   lines(): AsyncIterable<TimedLine>;
 }
 
@@ -31,6 +39,9 @@ export function openLineInput(file: string | undefined, options: LineInputOption
     profile: null,
     forEach: async (onLine) => {
       await streamTelemetryLines(file, onLine, { intervalS: options.intervalS });
+    },
+    forEachBytes: async (onLine) => {
+      await streamTelemetryBytes(file, onLine, { intervalS: options.intervalS });
     },
     lines: () => readTelemetryLines(file, { intervalS: options.intervalS }),
   };

@@ -38,6 +38,8 @@ function readProfileFileJson(path: string): unknown {
         : `cannot read profile ${path}: ${(err as Error).message}`,
     );
   }
+  // A UTF-8 byte-order mark, as some editors save, is not part of the JSON.
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
     return JSON.parse(text) as unknown;
   } catch (err) {

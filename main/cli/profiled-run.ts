@@ -12,6 +12,7 @@ export class ProfiledRun {
   private pipeline: Pipeline | null;
   private pending: { text: string; rxS: number; tooLong: boolean }[] = [];
   private readonly probe = createLineParser({});
+  private readonly decoder = new TextDecoder('utf-8');
   /** Set when the profile was assumed. */
   note: string | null = null;
 
@@ -31,6 +32,12 @@ export class ProfiledRun {
     this.pending.push({ text, rxS, tooLong });
     const probe = this.probe.parse(text, rxS, tooLong);
     if (probe.kind === 'sample' && probe.sample.vbatV !== undefined) this.start(probe.sample.vbatV);
+  }
+
+  /** push for a line still in bytes (the replay fast path); the bytes are not kept. */
+  pushBytes(bytes: Uint8Array, from: number, to: number, rxS: number, tooLong: boolean): void {
+    if (this.pipeline) this.onOutcome(this.pipeline.pushBytes(bytes, from, to, rxS, tooLong));
+    else this.push(this.decoder.decode(bytes.subarray(from, to)), rxS, tooLong);
   }
 
   /** The pipeline after the last line (a profile is assumed now if none was yet). */

@@ -31,6 +31,8 @@ export interface PipelineOptions {
 export interface Pipeline {
   readonly profile: ResolvedProfile;
   pushLine(text: string, rxS: number, tooLong?: boolean): LineOutcome;
+  /** The same for a line still in bytes, bytes[from, to) (replay's fast path). */
+  pushBytes(bytes: Uint8Array, from: number, to: number, rxS: number, tooLong?: boolean): LineOutcome;
   /** Time passes with no line (live sources): silence checks on the receive clock. */
   tick(rxS: number): EngineEvent[];
   /** The source knows telemetry was interrupted from startRxS (endRxS null while it lasts). */
@@ -54,40 +56,47 @@ export function createPipeline(profile: ResolvedProfile, options: PipelineOption
   let rejectedTotal = 0;
   let typicalS = NaN;
 
+  function accept(parsed: LineResult, rxS: number): LineOutcome {
+    let result = parsed;
+    if (result.kind !== 'blank') lines++;
+    if (result.kind === 'sample') {
+      const why = implausibility(result.sample, limits);
+      if (why !== null) {
+        // Counted and kept in the raw record like any rejected line; never integrated. An
+        // impossible temperature alone still tells the engine its temperature protection is blind.
+        const blind = onlyTemperatureImplausible(result.sample, limits);
+        result = { kind: 'rejected', reason: 'implausible', detail: why };
+        rejectedTotal++;
+        rejected.implausible = (rejected.implausible ?? 0) + 1;
+        const events = blind && clock.hasStarted ? engine.blindSensor(clock.at(rxS), why) : NO_EVENTS;
+        return { result, sample: null, events };
+      }
+    }
+    if (result.kind === 'rejected') {
+      rejectedTotal++;
+      rejected[result.reason] = (rejected[result.reason] ?? 0) + 1;
+      return { result, sample: null, events: NO_EVENTS };
+    }
+    if (result.kind !== 'sample') return { result, sample: null, events: NO_EVENTS };
+    const sample = result.sample as TimedSample;
+    sample.t = clock.place(rxS, sample.deviceS);
+    const m = clock.typicalIntervalS;
+    if (m !== typicalS && m === m) {
+      typicalS = m;
+      engine.setTypicalInterval(m);
+    }
+    const events = engine.push(sample);
+    if (clock.lastKind === PLACED_GLITCH) return { result, sample, events, timeGlitch: true };
+    return { result, sample, events };
+  }
+
   return {
     profile,
     pushLine(text, rxS, tooLong = false) {
-      let result = parser.parse(text, rxS, tooLong);
-      if (result.kind !== 'blank') lines++;
-      if (result.kind === 'sample') {
-        const why = implausibility(result.sample, limits);
-        if (why !== null) {
-          // Counted and kept in the raw record like any rejected line; never integrated. An
-          // impossible temperature alone still tells the engine its temperature protection is blind.
-          const blind = onlyTemperatureImplausible(result.sample, limits);
-          result = { kind: 'rejected', reason: 'implausible', detail: why };
-          rejectedTotal++;
-          rejected.implausible = (rejected.implausible ?? 0) + 1;
-          const events = blind && clock.hasStarted ? engine.blindSensor(clock.at(rxS), why) : NO_EVENTS;
-          return { result, sample: null, events };
-        }
-      }
-      if (result.kind === 'rejected') {
-        rejectedTotal++;
-        rejected[result.reason] = (rejected[result.reason] ?? 0) + 1;
-        return { result, sample: null, events: NO_EVENTS };
-      }
-      if (result.kind !== 'sample') return { result, sample: null, events: NO_EVENTS };
-      const sample = result.sample as TimedSample;
-      sample.t = clock.place(rxS, sample.deviceS);
-      const m = clock.typicalIntervalS;
-      if (m !== typicalS && m === m) {
-        typicalS = m;
-        engine.setTypicalInterval(m);
-      }
-      const events = engine.push(sample);
-      if (clock.lastKind === PLACED_GLITCH) return { result, sample, events, timeGlitch: true };
-      return { result, sample, events };
+      return accept(parser.parse(text, rxS, tooLong), rxS);
+    },
+    pushBytes(bytes, from, to, rxS, tooLong = false) {
+      return accept(parser.parseBytes(bytes, from, to, rxS, tooLong), rxS);
     },
     tick(rxS) {
       return clock.hasStarted ? engine.tick(clock.at(rxS)) : NO_EVENTS;

@@ -1,6 +1,6 @@
 /**
  * Places samples on the run's time axis: seconds since the first sample, on the device
- * clock when lines carry `t`, else on the receive clock.
+ * clock when lines carry `t`, else on the receive clock (docs/cli.md).
  *
  * The device clock of a board on a long cable is not always right, so each device time is
  * checked against the last accepted one and the typical sample interval (the median of the

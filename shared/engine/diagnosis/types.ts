@@ -1,4 +1,4 @@
-/** The Diagnosis contract: why the fault output lit (the protocol, `diagnose --json`). */
+/** The Diagnosis contract: why the fault output lit (docs/codes.md, `diagnose --json`). */
 import type { ResolvedProfile } from '../../chemistry/types';
 import type { EngineEvent, TimedSample } from '../types';
 
