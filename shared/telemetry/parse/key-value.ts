@@ -168,7 +168,7 @@ export class KeyValueShape {
       const kind = h.kind;
       if (plain && kind === 0 && digits > 0 && digits <= 15 && fraction <= 22) {
         if (!w.plainNumber(h, sign * (fraction > 0 ? mantissa / POW10[fraction] : mantissa))) return false;
-      } else if (plain && kind === 1 && digits === 1 && sign === 1 && fraction < 0 && k === valueFrom + 1) {
+      } else if (plain && kind === 1 && mantissa <= 1 && digits === 1 && sign === 1 && fraction < 0 && k === valueFrom + 1) {
         w.setFlag(h, mantissa === 1);
       } else if (kind === 2) {
         for (; k < to; k++) {
