@@ -134,11 +134,21 @@ export class KeyValueShape {
         i++;
         continue;
       }
-      const known = keys.keyBeforeEqualsBytes(b, i, to);
+      // The key, up to `=`: packed as it is read, found with one probe when it is short.
+      let j = i;
+      let packed = 0;
+      for (; j < to; j++) {
+        c = b[j];
+        if (c === 61) break;
+        if (c <= 32 || c >= 127 || c === 44 || c === 59 || c === 34) return false;
+        if (j - i < 4) packed = packed * 256 + c;
+      }
+      if (j === to || j === i) return false;
+      const known = j - i <= 4 ? keys.shortKey(packed) : keys.keyBeforeEqualsBytes(b, i, to);
       if (known === undefined) return false;
       pairs++;
       const h = known.handler;
-      const valueFrom = i + known.length + 1;
+      const valueFrom = j + 1;
       let k = valueFrom;
       let sign = 1;
       if (k < to) {
@@ -168,7 +178,15 @@ export class KeyValueShape {
       const kind = h.kind;
       if (plain && kind === 0 && digits > 0 && digits <= 15 && fraction <= 22) {
         if (!w.plainNumber(h, sign * (fraction > 0 ? mantissa / POW10[fraction] : mantissa))) return false;
-      } else if (plain && kind === 1 && mantissa <= 1 && digits === 1 && sign === 1 && fraction < 0 && k === valueFrom + 1) {
+      } else if (
+        plain &&
+        kind === 1 &&
+        mantissa <= 1 &&
+        digits === 1 &&
+        sign === 1 &&
+        fraction < 0 &&
+        k === valueFrom + 1
+      ) {
         w.setFlag(h, mantissa === 1);
       } else if (kind === 2) {
         for (; k < to; k++) {
