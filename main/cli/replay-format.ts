@@ -4,7 +4,7 @@ import type { EngineEvent, RunSummary } from '@shared/engine/types';
 
 const round = (value: number, digits: number) => Number(value.toFixed(digits));
 
-/** The NDJSON summary record of PROTOCOL section 4. */
+/** The NDJSON summary record of docs/cli.md. */
 export function summaryRecord(summary: RunSummary) {
   const phaseS: Record<string, number> = {};
   for (const [phase, seconds] of Object.entries(summary.phaseS)) phaseS[phase] = round(seconds ?? 0, 1);

@@ -7,6 +7,7 @@ import { spawn } from 'node:child_process';
 import { Option, type Command } from 'commander';
 import { BackendStartError, startBackend, type BackendOptions } from '../app/backend';
 import { reportChildFatal, runChildBackend } from '../app/child-backend';
+import { parseWebhookUrl, startAlarmWebhook } from '../app/alarm-webhook';
 import { realLibraries } from '../app/libraries';
 import { RecorderOpenError } from '../recorder/errors';
 import { startServer } from '../server';
@@ -27,6 +28,7 @@ interface ServeOptions {
   baud: string;
   profile?: string;
   open?: boolean;
+  webhook?: string;
   electronChild?: boolean;
 }
 
@@ -48,6 +50,10 @@ export function registerServe(program: Command): void {
     .option('--baud <n>', 'baud rate of --station-port', '115200')
     .option('--profile <file>', 'profile JSON of the --station-port station')
     .option('--open', 'open the address in the default browser')
+    .option(
+      '--webhook <url>',
+      'POST every alarm as JSON to this http(s) address (a few retries, then logged)',
+    )
     .addOption(
       new Option(
         '--electron-child',
@@ -104,6 +110,13 @@ async function serve(options: ServeOptions): Promise<void> {
   }
   const backendOptions = backendOptionsFrom(options);
   const port = portNumber('--port', options.port);
+  if (options.webhook !== undefined) {
+    try {
+      parseWebhookUrl(options.webhook);
+    } catch (err) {
+      throw new UsageError((err as Error).message);
+    }
+  }
   let backend;
   try {
     backend = await startBackend(backendOptions);
@@ -140,6 +153,14 @@ async function serve(options: ServeOptions): Promise<void> {
     `Taperline is serving at ${server.url} (${stations} station${stations === 1 ? '' : 's'}, ${recording}; Ctrl-C stops)\n`,
   );
   if (options.open) openInBrowser(server.url);
+  const webhook = options.webhook
+    ? startAlarmWebhook({
+        url: options.webhook,
+        stations: backend.stations,
+        log: (line) => process.stderr.write(`taperline: ${line}\n`),
+      })
+    : null;
+  if (webhook) process.stdout.write(`Alarms are posted to ${options.webhook}\n`);
 
   await new Promise<void>((resolve) => {
     let stopping = false;
@@ -147,6 +168,7 @@ async function serve(options: ServeOptions): Promise<void> {
       if (stopping) return;
       stopping = true;
       void (async () => {
+        webhook?.stop();
         await server.close();
         await backend.stop();
         process.stdout.write('Taperline stopped; every run was closed as stopped.\n');

@@ -15,6 +15,7 @@ import type { SupplyParams } from './supply';
 import type { ThermalParams } from './thermal';
 import type { ProfileJson, Scenario } from './types';
 import type { CloudParams, DayParams } from './irradiance';
+import { BOARD_BUILDERS } from './board-scenarios';
 
 /** Every demo board reads a 10 kOhm B3435 NTC through a 10 kOhm pull-up on a 12-bit ADC. */
 const DEMO_THERMISTOR: ThermistorModel = {
@@ -560,6 +561,7 @@ const BUILDERS: Record<string, () => Scenario> = {
   'loose-connection': looseConnection,
   'overvoltage-drift': overvoltageDrift,
   'weak-panel-timer': weakPanelTimer,
+  ...BOARD_BUILDERS,
 };
 
 export const SCENARIO_NAMES: readonly string[] = Object.keys(BUILDERS);

@@ -4,10 +4,11 @@
  */
 import { drawSparkline } from '../charts/sparkline';
 import { hatchSwatch } from '../charts/phase-style';
-import { h, levelBadge } from '../dom';
+import { h } from '../dom';
 import { formatNumber, phaseWords } from '../format';
 import type { Navigator, View } from '../router';
-import { troubleRank, type StationModel, type Store } from '../store';
+import type { StationModel, Store } from '../store';
+import { heldOrder, tileAlarmLine, tileAlarmState, tileAlarmWords, tileClassName } from './rack-tile-state';
 
 const RACK_REDRAW_MS = 500;
 
@@ -19,6 +20,9 @@ export class RackView implements View {
     role: 'list',
     'aria-label': 'Stations, most urgent first',
   });
+  /** Ids in the order last drawn, kept while the pointer is over the rack or a tile has focus. */
+  private drawnOrder: string[] = [];
+  private pointerInside = false;
   private readonly tiles = new Map<
     string,
     { tile: HTMLButtonElement; spark: HTMLCanvasElement; body: HTMLElement }
@@ -42,6 +46,12 @@ export class RackView implements View {
       ),
       this.grid,
     );
+    this.grid.addEventListener('pointerenter', () => (this.pointerInside = true));
+    this.grid.addEventListener('pointerleave', () => {
+      this.pointerInside = false;
+      this.schedule();
+    });
+    this.grid.addEventListener('focusout', () => this.schedule());
     store.on('stations', () => this.schedule());
     store.on('samples', () => this.schedule());
   }
@@ -65,7 +75,11 @@ export class RackView implements View {
   }
 
   private render(): void {
-    const models = this.store.sortedStations();
+    const sorted = this.store.sortedStations();
+    const hold = this.pointerInside || this.grid.contains(document.activeElement);
+    const byId = new Map(sorted.map((m) => [m.view.id, m]));
+    this.drawnOrder = heldOrder(this.drawnOrder, [...byId.keys()], hold);
+    const models = this.drawnOrder.map((id) => byId.get(id)!);
     if (models.length === 0) {
       this.grid.replaceChildren(
         h('p', { class: 'quiet' }, 'No stations yet: add one in Connect & profile (Alt+5).'),
@@ -110,23 +124,18 @@ export class RackView implements View {
     const { view } = model;
     const { state } = view;
     const last = state.last;
-    const rank = troubleRank(model);
-    const alarms = state.activeAlarms;
-    const worst = alarms.find((a) => a.level === 'critical') ?? alarms[0];
-    entry.tile.className = `tile phase-${state.phase}${rank >= 40 ? ' tile-trouble' : rank >= 10 ? ' tile-attention' : ''}`;
+    const alarm = tileAlarmState(model);
+    entry.tile.className = tileClassName(model, alarm);
     const swatch = hatchSwatch(state.phase, 18, 18);
     swatch.setAttribute('aria-hidden', 'true');
-    const alarmLine = worst
-      ? h(
-          'span',
-          { class: 'tile-alarm' },
-          levelBadge(worst.level),
-          ` ${worst.code}${model.isAcked(worst) ? ' (acknowledged)' : ''}${alarms.length > 1 ? ` +${alarms.length - 1} more` : ''}`,
-        )
-      : h('span', { class: 'tile-alarm tile-ok' }, '✓ No active alarms');
+    const alarmLine = tileAlarmLine(alarm);
     const sourceLine =
       view.source.state !== 'open'
-        ? h('span', { class: 'tile-source' }, `Source ${view.source.state}: ${view.source.detail}`)
+        ? h(
+            'span',
+            { class: `tile-source tile-source-${view.source.state}` },
+            `Source ${view.source.state}: ${view.source.detail}`,
+          )
         : '';
     entry.body.replaceChildren(
       h(
@@ -147,9 +156,7 @@ export class RackView implements View {
       alarmLine,
       sourceLine,
     );
-    const alarmWords = worst
-      ? `${worst.level} alarm ${worst.code}${model.isAcked(worst) ? ', acknowledged' : ''}`
-      : 'no active alarms';
+    const alarmWords = tileAlarmWords(alarm);
     entry.tile.setAttribute(
       'aria-label',
       `${view.label || view.id}: ${phaseWords(state.phase, view.profile.chemistry)}, ${formatNumber(last?.vbatV, 2, 'volts')}, ${formatNumber(last?.ibatA, 2, 'amps')}, ${formatNumber(last?.tempC, 1, 'degrees Celsius')}, ${formatNumber(state.metrics.ah, 2, 'amp-hours')}, ${alarmWords}. Opens the Bench view.`,

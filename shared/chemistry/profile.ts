@@ -1,5 +1,5 @@
 /**
- * Profile validation (PROTOCOL section 2): the user's JSON -> a ResolvedProfile with every
+ * Profile validation (docs/profile.md): the user's JSON -> a ResolvedProfile with every
  * limit filled in from the chemistry's defaults, or a refusal that names the bad key and why.
  */
 import { z } from 'zod';
@@ -74,6 +74,25 @@ const dividerShape = {
     .optional(),
 };
 
+/** `[min, max]` of one design value; a reversed pair is refused with the key named. */
+const rangeSchema = () =>
+  z
+    .tuple([finite(), finite()])
+    .refine(([min, max]) => min <= max, { message: 'must be [min, max] with min at most max' });
+
+/** `expect`: what the board was designed to do, each key a `[min, max]` in its unit (board checks). */
+const expectSchema = z.strictObject({
+  chargeCurrentA: rangeSchema().optional(),
+  regulationV: rangeSchema().optional(),
+  terminationA: rangeSchema().optional(),
+  preconditionA: rangeSchema().optional(),
+  timerMin: rangeSchema().optional(),
+  efficiency: rangeSchema().optional(),
+  tempRiseC: rangeSchema().optional(),
+  inputV: rangeSchema().optional(),
+  chargeTimeMin: rangeSchema().optional(),
+});
+
 const thermistorSchema = z.discriminatedUnion('model', [
   z.strictObject({
     model: z.literal('beta'),
@@ -108,7 +127,7 @@ export const profileSchema = z.strictObject({
   preconditionTimeoutMin: minutes().optional(),
   stallMin: minutes().optional(),
   silenceS: positive().max(MAX_S).optional(),
-  // Beyond PROTOCOL's list: the chemistry-specific limits of ResolvedProfile, so a gel battery
+  // Beyond the common keys of docs/profile.md: the chemistry-specific limits of ResolvedProfile, so a gel battery
   // (float 2.25 V, −5 mV/°C) or a particular NiMH cell can be described without code changes.
   floatVPerCell: voltsPerCell().optional(),
   minusDeltaVPerCell: positive().max(1).optional(),
@@ -116,6 +135,7 @@ export const profileSchema = z.strictObject({
   tempCompVPerCPerCell: finite().min(-0.1).max(0).optional(),
   fields: fieldsSchema.optional(),
   thermistor: thermistorSchema.optional(),
+  expect: expectSchema.optional(),
 });
 
 export type ProfileInput = z.infer<typeof profileSchema>;
@@ -183,6 +203,7 @@ function fail(key: string, why: string, got: unknown): ProfileResult {
 function knownKeysAt(path: string[], input: unknown): string[] {
   if (path.length === 0) return Object.keys(profileSchema.shape);
   if (path.length === 1 && path[0] === 'fields') return Object.keys(fieldsSchema.shape);
+  if (path.length === 1 && path[0] === 'expect') return Object.keys(expectSchema.shape);
   if (path.length === 2 && path[0] === 'fields') return Object.keys(fieldMappingSchema.shape);
   if (path.length === 1 && path[0] === 'thermistor') {
     const model = input && typeof input === 'object' ? (input as Record<string, unknown>).model : undefined;
@@ -423,6 +444,7 @@ function resolve(input: ProfileInput): ProfileResult {
     defaulted,
   };
   if (th) profile.thermistor = th;
+  if (input.expect) profile.expect = input.expect;
   const given = new Set(Object.keys(input));
   return checkConsistency(profile, given) ?? { ok: true, profile };
 }
@@ -458,7 +480,7 @@ function round6(x: number): number {
   return Math.round(x * 1e6) / 1e6;
 }
 
-/** Validate a profile (PROTOCOL section 2) and fill in every default. Never throws. */
+/** Validate a profile (docs/profile.md) and fill in every default. Never throws. */
 export function parseProfile(input: unknown): ProfileResult {
   const deep = tooDeep(input);
   if (deep) return deep;

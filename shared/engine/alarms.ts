@@ -1,5 +1,5 @@
 /**
- * Alarm bookkeeping (PROTOCOL section 3): each code has a level, a raise delay and a clear
+ * Alarm bookkeeping (docs/codes.md): each code has a level, a raise delay and a clear
  * delay. A condition must hold for its raise delay of sample time before the alarm is raised,
  * once per episode; the clear condition (with hysteresis, decided by the caller) must hold for
  * the clear delay before `alarm-clear`. The engine decides the conditions; this only debounces.
@@ -13,7 +13,7 @@ interface AlarmRule {
 }
 
 /**
- * Levels from PROTOCOL section 3: critical = someone must act now. A fading source
+ * Levels from docs/codes.md: critical = someone must act now. A fading source
  * (input-low) and a lost line (silence) are warnings. Delays: 3 s filters a noisy reading of a
  * sensor (common practice); pins and timers need none; input-low waits 10 s so a passing cloud
  * does not raise it.

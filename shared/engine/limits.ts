@@ -84,7 +84,7 @@ export function deriveLimits(p: ResolvedProfile): EngineLimits {
     flowOffA: 0.6 * flowOnA,
     resumeA: Math.min(2 * p.terminationA, 0.5 * (p.terminationA + p.chargeCurrentA)),
     preconditionMaxA: Math.min(1.5 * p.preconditionA, 0.5 * (p.preconditionA + p.chargeCurrentA)),
-    // Reverse current beyond C/50 (PROTOCOL section 3).
+    // Reverse current beyond C/50 (docs/codes.md).
     reverseA: c / 50,
     hasCv,
     isLeadAcid: p.chemistry === 'lead-acid',

@@ -1,5 +1,5 @@
 /**
- * The run engine: samples in, phase / alarm / gap events and state out (PROTOCOL section 3).
+ * The run engine: samples in, phase / alarm / gap events and state out (docs/codes.md).
  * It composes the phase machine, the alarm book and the metrics; the per-sample path works on
  * numbers in place and allocates only the events it returns.
  */

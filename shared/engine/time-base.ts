@@ -1,6 +1,6 @@
 /**
  * Places samples on the run's time axis: seconds since the first sample, on the device
- * clock when lines carry `t`, else on the receive clock (PROTOCOL section 4).
+ * clock when lines carry `t`, else on the receive clock (docs/cli.md).
  *
  * A device that reboots restarts its clock; the run time must not go backwards, so a
  * reset is bridged with the receive time that passed.

@@ -1,4 +1,4 @@
-/** The run engine's contract: samples in, state and events out (PROTOCOL section 3). */
+/** The run engine's contract: samples in, state and events out (docs/codes.md). */
 import type { Sample } from '../telemetry/types';
 
 export type Phase = 'precondition' | 'cc' | 'cv' | 'done' | 'fault' | 'idle';

@@ -1,5 +1,5 @@
 /**
- * Splits a byte stream into telemetry lines (PROTOCOL section 1): a line ends at `\n`,
+ * Splits a byte stream into telemetry lines (docs/telemetry.md): a line ends at `\n`,
  * one `\r` before it is dropped, text is UTF-8 (invalid bytes become U+FFFD, which the
  * parser rejects as `not-text`). A line is at most `maxBytes` bytes: a longer run is cut,
  * its first `maxBytes` bytes delivered once with `tooLong = true`, and the rest dropped

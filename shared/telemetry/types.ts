@@ -1,6 +1,6 @@
 /**
  * The typed contract of the telemetry layer: what one received line becomes.
- * Pure types only; see PROTOCOL section 1 in the project's DEVELOPERS.md.
+ * Pure types only; see docs/telemetry.md.
  */
 
 export type SourceKind = 'panel' | 'adapter' | 'none';
@@ -58,7 +58,7 @@ export interface FieldMapping {
 /** Profile `fields`: canonical field -> device key (and unit). */
 export type FieldMap = Partial<Record<CanonicalField, FieldMapping>>;
 
-/** Thermistor model of a profile (PROTOCOL section 2). */
+/** Thermistor model of a profile (docs/profile.md). */
 export type ThermistorModel =
   | {
       model: 'beta';
@@ -92,5 +92,5 @@ export type LineResult =
   | { kind: 'blank' }
   | { kind: 'rejected'; reason: RejectReason; detail: string };
 
-/** Lines are at most this many bytes (PROTOCOL section 1). */
+/** Lines are at most this many bytes (docs/telemetry.md). */
 export const MAX_LINE_BYTES = 4096;

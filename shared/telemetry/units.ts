@@ -1,5 +1,5 @@
 /**
- * Unit suffixes on telemetry values (PROTOCOL section 1): `8214mV`, `598mA`, `0.6A`,
+ * Unit suffixes on telemetry values (docs/telemetry.md): `8214mV`, `598mA`, `0.6A`,
  * `27.1C`, `10kOhm`... Each canonical field has one base unit; a suffix converts into it,
  * and a suffix of another quantity (`ibat=3V`) is refused as `bad-unit`.
  */

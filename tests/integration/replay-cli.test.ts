@@ -1,6 +1,6 @@
 /**
  * `taperline replay` through the shipped command (bin/taperline.cjs -> dist/cli.cjs, built by
- * `npm test` first): NDJSON events per PROTOCOL section 4, standard input, pacing, exit codes,
+ * `npm test` first): NDJSON events per docs/cli.md, standard input, pacing, exit codes,
  * and malformed lines counted without stopping the run.
  */
 import { test } from 'node:test';
@@ -40,7 +40,7 @@ const ndjson = (stdout: string): Record[] =>
     .split('\n')
     .map((line) => JSON.parse(line) as Record);
 
-test('--events prints one JSON event a line and the summary last (PROTOCOL section 4)', () => {
+test('--events prints one JSON event a line and the summary last (docs/cli.md)', () => {
   const { log, profile } = writeScenario('damaged-cell');
   const r = taperline(['replay', log, '--profile', profile, '--events']);
   assert.equal(r.status, 0, r.stderr);

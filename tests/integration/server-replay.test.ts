@@ -148,7 +148,7 @@ test('the live station and its recorded run get the same diagnosis of the fault'
   const recordedDiagnosis = (recorded as { result: DiagnosisReply }).result;
   for (const diagnosis of [liveDiagnosis, recordedDiagnosis]) {
     assert.ok(diagnosis.causes.length > 0, `a fault has causes: ${JSON.stringify(diagnosis)}`);
-    // PROTOCOL section 3: causes sorted by confidence, highest first.
+    // docs/codes.md: causes sorted by confidence, highest first.
     for (let i = 1; i < diagnosis.causes.length; i++)
       assert.ok(diagnosis.causes[i - 1].confidence >= diagnosis.causes[i].confidence);
   }

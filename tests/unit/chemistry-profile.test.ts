@@ -1,4 +1,4 @@
-/** Profile validation (PROTOCOL section 2): defaults filled in, and a bad profile names its bad key. */
+/** Profile validation (docs/profile.md): defaults filled in, and a bad profile names its bad key. */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import {
@@ -9,7 +9,7 @@ import {
 } from '@shared/chemistry/profile';
 import { CHEMISTRIES } from '@shared/chemistry/types';
 
-// The example profile of PROTOCOL section 2 (an invented garden-sensor pack).
+// The example profile of docs/profile.md (an invented garden-sensor pack).
 const example = {
   name: 'garden-sensor 3S Li-ion',
   chemistry: 'li-ion',
@@ -31,7 +31,7 @@ function refused(input: unknown): { key: string; error: string } {
   return r;
 }
 
-test('the PROTOCOL example profile is accepted as written', () => {
+test('the docs/profile.md example profile is accepted as written', () => {
   const r = parseProfile(example);
   assert.ok(r.ok);
   assert.equal(r.profile.name, 'garden-sensor 3S Li-ion');
@@ -42,7 +42,7 @@ test('the PROTOCOL example profile is accepted as written', () => {
   const units = { ibat: { key: 'i', unit: 'mA' }, ntc: { key: 'n', unit: 'kOhm' } };
   assert.ok(parseProfile({ chemistry: 'li-ion', cells: 1, fields: units }).ok);
   assert.equal(r.profile.thermistor?.model, 'beta');
-  // PROTOCOL section 3: precondition timeout defaults to timerMin/8 when a timer is set: 240/8 = 30 min.
+  // docs/codes.md: precondition timeout defaults to timerMin/8 when a timer is set: 240/8 = 30 min.
   assert.equal(r.profile.preconditionTimeoutMin, 30);
 });
 
@@ -53,7 +53,7 @@ test('only chemistry and cells are required; every other limit is filled per che
     const p = r.profile;
     assert.ok(p.terminationA < p.chargeCurrentA);
     assert.ok(p.preconditionVPerCell < p.regulationVPerCell && p.regulationVPerCell < p.overvoltageVPerCell);
-    // PROTOCOL section 3: silence 10 s; precondition timeout 30 min without a timer.
+    // docs/codes.md: silence 10 s; precondition timeout 30 min without a timer.
     assert.equal(p.silenceS, 10);
     assert.equal(p.preconditionTimeoutMin, 30);
     assert.equal(p.timerMin, null);

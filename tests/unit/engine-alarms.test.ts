@@ -1,5 +1,5 @@
 /**
- * Every alarm code of PROTOCOL section 3 on synthetic sequences (invented data): raised with its
+ * Every alarm code of docs/codes.md on synthetic sequences (invented data): raised with its
  * level once per episode, debounced, cleared when the condition is gone, with numbers in the message.
  */
 import { test } from 'node:test';
@@ -22,7 +22,7 @@ const only = (events: EngineEvent[], code: string): AlarmEvent => {
   return raised[0];
 };
 
-test('levels: critical only where someone must act (PROTOCOL section 3)', () => {
+test('levels: critical only where someone must act (docs/codes.md)', () => {
   const critical = ALARM_CODES.filter((c) => ALARM_RULES[c].level === 'critical').sort();
   assert.deepEqual(critical, ['fault-pin', 'overtemp', 'overvoltage', 'precondition-timeout', 'timer']);
   assert.equal(ALARM_RULES['input-low'].level, 'warn');
@@ -94,7 +94,7 @@ test('overvoltage above 4.25 V/cell is critical and clears below the limit', () 
 });
 
 test('a pack stuck below the precondition threshold: precondition-timeout (critical) and fault', () => {
-  // Junlee / ElectroDragon: precondition below ≈ 3.0 V/cell at ≤ C/10. PROTOCOL: timeout 30 min without a timer.
+  // Junlee / ElectroDragon: precondition below ≈ 3.0 V/cell at ≤ C/10. docs/codes.md: timeout 30 min without a timer.
   const engine = createRunEngine(li());
   const events = pushAll(
     engine,
@@ -116,7 +116,7 @@ test('a pack stuck below the precondition threshold: precondition-timeout (criti
   assert.equal(engine.state().phase, 'fault');
 });
 
-test('with a safety timer the precondition timeout is timerMin/8 (PROTOCOL section 3)', () => {
+test('with a safety timer the precondition timeout is timerMin/8 (docs/codes.md)', () => {
   const engine = createRunEngine(li({ timerMin: 80 }));
   const a = only(pushAll(engine, steady(0, 1200, 1, { vbatV: 7.5, ibatA: 0.25 })), 'precondition-timeout');
   assert.equal(a.t, 600); // 80 min / 8 = 10 min
@@ -200,7 +200,7 @@ test('input-low: source at the set point or under the pack is a warning; missing
 });
 
 test('reverse-current below -C/50 with a source present is a warning; without a source it is not raised', () => {
-  // PROTOCOL section 3: ibat below −C/50 = −0.05 A for 2.5 Ah.
+  // docs/codes.md: ibat below −C/50 = −0.05 A for 2.5 Ah.
   const engine = createRunEngine(li());
   const a = only(
     pushAll(engine, steady(0, 60, 1, { vbatV: 11.4, ibatA: -0.08, src: 'adapter', vinV: 15 })),

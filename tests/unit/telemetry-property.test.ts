@@ -84,7 +84,7 @@ test('random bytes through framer and parser: never throws, every framed line is
           chunks.push(bytes.subarray(pos, pos + chunkSize));
         const tally = run(chunks, maxBytes);
         assert.equal(accounted(tally), tally.framed);
-        // PROTOCOL 1: one line per newline, plus a last unterminated one.
+        // docs/telemetry.md: one line per newline, plus a last unterminated one.
         const newlines = bytes.reduce((n, b) => n + (b === 10 ? 1 : 0), 0);
         const tail = bytes.length > 0 && bytes[bytes.length - 1] !== 10 ? 1 : 0;
         assert.equal(tally.framed, newlines + tail);
@@ -110,7 +110,7 @@ test('a 10 MB burst without newline keeps memory bounded and costs one rejected 
   const chunks: Uint8Array[] = [];
   for (let pos = 0; pos < burst.length; pos += 16384) chunks.push(burst.subarray(pos, pos + 16384));
   chunks.push(new TextEncoder().encode('\nvbat=8.2\n'));
-  const tally = run(chunks); // asserts bufferedBytes <= 4097 after every chunk (PROTOCOL 1: 4096-byte lines)
+  const tally = run(chunks); // asserts bufferedBytes <= 4097 after every chunk (docs/telemetry.md: 4096-byte lines)
   assert.deepEqual(tally, { framed: 2, sample: 1, rejected: 1, blank: 0, firmware: 0, header: 0 });
 });
 
