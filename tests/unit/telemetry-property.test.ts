@@ -300,3 +300,60 @@ test('a value that is not finite after conversion never becomes a sample; every 
     { numRuns: 3000 },
   );
 });
+
+test('key=value lines read from bytes and from text give the same result (the replay fast path)', () => {
+  const keyArb = fc.constantFrom(
+    't',
+    'vbat',
+    'vb',
+    'VB',
+    'vbatx',
+    'ibat',
+    'temp',
+    'ntc',
+    'chg',
+    'flt',
+    'src',
+    'Vin',
+    'iin',
+    'duty',
+    'a_long_key',
+  );
+  const valueArb = fc.oneof(
+    fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
+    fc.integer().map(String),
+    fc.constantFrom(
+      '0',
+      '1',
+      '2',
+      '-',
+      '+',
+      '.',
+      '1.',
+      '.5',
+      '-.5',
+      '+3',
+      '00012',
+      '1234567890123456',
+      '0.1234567890123456789012',
+      'panel',
+      'adapter',
+      'none',
+      'Panel',
+      'solar',
+      '8214mV',
+      '',
+      '1,5',
+    ),
+  );
+  const sepArb = fc.constantFrom(' ', ',', ';', '\t', '  ', ', ');
+  fc.assert(
+    fc.property(fc.array(fc.tuple(keyArb, valueArb, sepArb), { minLength: 1, maxLength: 10 }), (pairs) => {
+      const line = pairs.map(([k, v, sep], i) => (i === 0 ? '' : sep) + `${k}=${v}`).join('');
+      const bytes = new TextEncoder().encode(line);
+      const fromBytes = createLineParser(OPTIONS).parseBytes(bytes, 0, bytes.length, 3);
+      assert.deepEqual(fromBytes, createLineParser(OPTIONS).parse(line, 3), line);
+    }),
+    { numRuns: 4000 },
+  );
+});
