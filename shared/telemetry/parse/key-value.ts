@@ -2,9 +2,9 @@
  * The key=value line shape: `t=812.5 vbat=8.214 ibat=0.598 chg=1`, tokens separated by
  * spaces, commas, tabs or semicolons.
  *
- * `fast` is the hot path of every replay and live port: one pass over the characters,
- * known keys recognised where their token starts, plain decimals read while the value
- * is scanned, no substrings and no regular expressions. It returns false when the line
+ * `fast` is the hot path of live ports (`fastBytes`, the same over bytes, is replay's):
+ * one pass over the characters, known keys recognised where their token starts, plain
+ * decimals read while the value is scanned, no substrings and no regular expressions. It returns false when the line
  * needs `general` (quotes, `key = value`, a token without `=`), which then produces the
  * sample or the precise rejection.
  */
