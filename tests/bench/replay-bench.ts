@@ -239,9 +239,9 @@ async function main(): Promise<void> {
   const get = (label: string) => rates.get(label) as Rate;
   ratio('replay / LineFramer splitting', get(REPLAY), get(FRAMER));
   ratio('replay / node:readline', get(REPLAY), get(READLINE), 1);
-  // The text path (live ports) last: once it has run, the parser's shared steps have seen
-  // both paths and the byte path of this process is measurably slower (about 0.6x), which
-  // is not what `taperline replay` sees in a process of its own.
+  // The text path (live ports) last, so that replay is measured as `taperline replay` runs:
+  // in a process where only the byte path has run (with both run first, one run under tsx
+  // gave replay about 0.6x of this figure; a bundled build did not show it).
   await textPipeline(log1m, profileJson);
   const textRates = await compare(3, [
     [READLINE, () => readlineOnly(log1m)],
