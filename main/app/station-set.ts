@@ -14,6 +14,7 @@ const EVENTS: (keyof StationManagerEvents)[] = [
   'line',
   'source',
   'problem',
+  'board',
 ];
 
 export function combineStationManagers(
@@ -45,6 +46,8 @@ export function combineStationManagers(
     send: (stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | '') =>
       owner(stationId).send(stationId, text, ending),
     setProfile: (stationId: string, profile: unknown) => owner(stationId).setProfile(stationId, profile),
+    setBoard: (stationId: string, board: Parameters<StationManager['setBoard']>[1]) =>
+      owner(stationId).setBoard(stationId, board),
     async close() {
       await Promise.all([live.close(), replays.close()]);
     },

@@ -14,6 +14,8 @@ import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';
 import { toFeedLine } from './feed-line';
 import { defaultMakeSource } from './sources';
+import { storeRunVerdict } from '../checks/run-verdict';
+import { applyBoard, boardFromFirmware, NO_BOARD, type StationBoard } from '../checks/station-board';
 import type {
   SourceConfig,
   StationConfig,
@@ -65,6 +67,8 @@ interface Station {
   gap: { startRxS: number; reason: string } | null;
   lines: number;
   rejected: number;
+  /** The board under test (board id, operator, firmware, batch). */
+  board: StationBoard;
   /** No profile given: lines wait here until the first pack voltage shows the cell count. */
   assume: { probe: LineParser; pending: SourceLine[] } | null;
 }
@@ -139,6 +143,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       recording: health
         ? { ok: health.ok, problem: health.problem }
         : { ok: false, problem: 'not recording: no database is open' },
+      board: { ...st.board },
     };
   }
 
@@ -158,6 +163,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         { resumeWithinS },
       );
       st.runId = started.runId;
+      if (st.board !== NO_BOARD) recorder.setRunInfo(started.runId, { ...st.board });
       if (started.resumed) {
         // Rebuild the run's state from its own lines, then mark the time the recorder was away.
         for (const line of recorder.lineIterator(started.runId))
@@ -180,6 +186,9 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
   function endRun(st: Station, reason: RunEndReason): void {
     if (!recorder || st.runId === null) return;
     try {
+      guarded(st, 'judging the run', () => {
+        if (recorder && st.runId !== null) storeRunVerdict(recorder, st.runId, st.profile, st.board.boardId);
+      });
       recorder.endRun(st.runId, now(), reason, st.pipeline.summary());
     } catch (err) {
       problem(
@@ -229,6 +238,10 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
   function onLine(st: Station, line: SourceLine): void {
     if (st.assume) return assumeFrom(st, st.assume, line);
     if (st.gap) closeGap(st, line.rxS);
+    if (line.text.startsWith('#')) {
+      const fromFirmware = boardFromFirmware(line.text);
+      if (fromFirmware) setBoard(st, fromFirmware);
+    }
     const out = st.pipeline.pushLine(line.text, line.rxS, line.tooLong);
     const feed = toFeedLine(line.text, line.rxS, out.result);
     if (out.result.kind !== 'blank') st.lines++;
@@ -240,6 +253,24 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     emitter.emit('line', { stationId: st.id, line: feed });
     if (out.sample) emitter.emit('sample', { stationId: st.id, sample: out.sample });
     record(st, out.events);
+  }
+
+  /** A new board id on a station that already tested one starts a new run for the new board. */
+  function setBoard(st: Station, update: Partial<StationBoard>): void {
+    const change = applyBoard(st.board, update, st.pipeline.state().last !== null);
+    if (!change) return;
+    st.board = change.board;
+    if (change.newRun) {
+      endRun(st, 'board-changed');
+      st.pipeline = createPipeline(st.profile);
+      st.lines = 0;
+      st.rejected = 0;
+      st.gap = null;
+      startRun(st);
+    } else if (recorder && st.runId !== null) {
+      recorder.setRunInfo(st.runId, { ...st.board });
+    }
+    emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: change.newRun });
   }
 
   function onStatus(st: Station, status: SourceStatus): void {
@@ -343,6 +374,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         gap: null,
         lines: 0,
         rejected: 0,
+        board: NO_BOARD,
         assume: assumed ? { probe: createLineParser({}), pending: [] } : null,
       };
       stations.set(st.id, st);
@@ -370,6 +402,11 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       const st = must(stationId);
       if (!st.source.send) throw new StationConfigError(`${st.label}: this source cannot send lines`);
       await st.source.send(text, ending);
+    },
+    async setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot> {
+      const st = must(stationId);
+      setBoard(st, board);
+      return snapshot(st);
     },
     async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
       const st = must(stationId);

@@ -5,6 +5,7 @@
 import type { EventEmitter } from 'node:events';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { FeedLine, SourceStatus, StationSnapshot } from '@shared/ipc/payloads';
+import type { StationBoard } from '../checks/station-board';
 
 export type { FeedLine, StationSnapshot };
 
@@ -52,6 +53,8 @@ export interface StationManagerEvents {
   source: [{ stationId: string; status: SourceStatus }];
   /** A problem a person should read (recording failed, port vanished...). */
   problem: [{ stationId: string | null; message: string; level: 'warn' | 'critical' }];
+  /** The board under test changed (typed, scanned or printed by the firmware). */
+  board: [{ stationId: string; board: StationBoard; newRun: boolean }];
 }
 
 export interface StationManager extends EventEmitter<StationManagerEvents> {
@@ -60,6 +63,8 @@ export interface StationManager extends EventEmitter<StationManagerEvents> {
   list(): StationSnapshot[];
   get(stationId: string): StationSnapshot | null;
   send(stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | ''): Promise<void>;
+  /** Set the board under test (typed or scanned); a new board id starts a new run. */
+  setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot>;
   /** Replace a station's profile: closes the current run and starts a new one. */
   setProfile(stationId: string, profile: unknown): Promise<StationSnapshot>;
   /** Stop every station, close their runs cleanly, flush the recorder. */

@@ -2,6 +2,7 @@
  * Rack view: one tile per station (phase, V, A, °C, Ah, a pack-voltage sparkline, alarm
  * state), a station in trouble first. A tile is a button: click or Enter opens its Bench view.
  */
+import { verdictBadge } from './checks-panel';
 import { drawSparkline } from '../charts/sparkline';
 import { hatchSwatch } from '../charts/phase-style';
 import { h, levelBadge } from '../dom';
@@ -146,6 +147,7 @@ export class RackView implements View {
       ),
       alarmLine,
       sourceLine,
+      verdictBadge(model.checks) ?? '',
     );
     const alarmWords = worst
       ? `${worst.level} alarm ${worst.code}${model.isAcked(worst) ? ', acknowledged' : ''}`

@@ -20,8 +20,26 @@ export class RunsView implements View {
   private readonly status = h('p', { class: 'runs-status', role: 'status', 'aria-live': 'polite' });
   private readonly tableHost = h('div', { class: 'runs-table-host' });
   private readonly speed = h('select', { id: 'replay-speed' });
+  private readonly verdictFilter = h(
+    'select',
+    { id: 'runs-verdict-filter' },
+    ...[
+      ['', 'any verdict'],
+      ['pass', 'pass'],
+      ['fail', 'fail'],
+      ['incomplete', 'incomplete'],
+      ['none', 'not judged'],
+    ].map(([value, label]) => h('option', { value }, label)),
+  );
+  private readonly boardFilter = h('input', {
+    id: 'runs-board-filter',
+    type: 'search',
+    autocomplete: 'off',
+    placeholder: 'board id contains…',
+  });
   private runs: RunListRow[] = [];
   private confirming: number | null = null;
+  private filtersWired = false;
 
   constructor(
     root: HTMLElement,
@@ -45,6 +63,10 @@ export class RunsView implements View {
           button('Refresh', () => void this.load(), { class: 'btn' }),
           h('label', { for: 'replay-speed', class: 'field-label' }, 'Replay speed'),
           this.speed,
+          h('label', { for: 'runs-verdict-filter', class: 'field-label' }, 'Verdict'),
+          this.verdictFilter,
+          h('label', { for: 'runs-board-filter', class: 'field-label' }, 'Board'),
+          this.boardFilter,
         ),
       ),
       this.status,
@@ -53,6 +75,11 @@ export class RunsView implements View {
   }
 
   show(): void {
+    if (!this.filtersWired) {
+      this.filtersWired = true;
+      this.verdictFilter.addEventListener('change', () => this.renderTable());
+      this.boardFilter.addEventListener('input', () => this.renderTable());
+    }
     void this.load();
   }
 
@@ -81,12 +108,25 @@ export class RunsView implements View {
     const head = h(
       'tr',
       {},
-      ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map(
-        (c) => h('th', { scope: 'col' }, c),
-      ),
+      ...[
+        'Run',
+        'Station',
+        'Board',
+        'Verdict',
+        'Profile',
+        'Started',
+        'Duration',
+        'End reason',
+        'Charge',
+        'Lines',
+        'Actions',
+      ].map((c) => h('th', { scope: 'col' }, c)),
     );
     const body = h('tbody');
-    for (const run of this.runs) body.append(this.row(run));
+    const shown = this.runs.filter((run) => this.passesFilters(run));
+    for (const run of shown) body.append(this.row(run));
+    if (shown.length === 0)
+      body.append(h('tr', {}, h('td', { colspan: '11', class: 'quiet' }, 'No run matches the filters.')));
     this.tableHost.replaceChildren(
       h(
         'table',
@@ -152,6 +192,12 @@ export class RunsView implements View {
       { 'data-run': run.id },
       h('th', { scope: 'row' }, String(run.id)),
       h('td', {}, run.stationLabel || run.stationId),
+      h('td', { class: 'run-board' }, run.boardId ?? '–'),
+      h(
+        'td',
+        { class: `run-verdict verdict-${run.verdict ?? 'none'}`, 'data-verdict': run.verdict ?? 'none' },
+        run.verdict ?? 'not judged',
+      ),
       h('td', {}, `${run.profileName} (${run.chemistry})`),
       h('td', {}, formatClock(run.startRxS)),
       h('td', { class: 'num' }, formatDuration(run.durationS)),
@@ -160,6 +206,14 @@ export class RunsView implements View {
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
       h('td', {}, actions),
     );
+  }
+
+  /** Filter by verdict (or "not judged") and by a part of the board id, case-insensitive. */
+  private passesFilters(run: RunListRow): boolean {
+    const verdict = this.verdictFilter.value;
+    if (verdict === 'none' ? run.verdict : verdict && run.verdict !== verdict) return false;
+    const board = this.boardFilter.value.trim().toLowerCase();
+    return !board || (run.boardId ?? '').toLowerCase().includes(board);
   }
 
   private async remove(run: RunListRow): Promise<void> {
