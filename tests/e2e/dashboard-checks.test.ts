@@ -35,7 +35,7 @@ test('board checks on a live simulated board', { timeout: 240_000 }, async (t) =
     // The model's truth: 0.1 V / (0.8 x 0.1 ohm) = 1.25 A; within 2 %.
     assert.ok(Math.abs(measured - 1.25) / 1.25 < 0.02, `measured ${measured} A`);
     assert.equal(await page.locator('#checks-verdict').getAttribute('data-verdict'), 'fail');
-    await page.locator('#view-bench .checks-table').scrollIntoViewIfNeeded();
+    await page.locator('#view-bench .checks-panel').scrollIntoViewIfNeeded();
     await screenshot(page, 'bench-checks');
   });
 
