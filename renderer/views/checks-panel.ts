@@ -17,7 +17,7 @@ export interface PanelBoard {
 const RESULT_WORDS: Record<string, string> = {
   pass: 'pass',
   fail: 'FAIL',
-  'not-measured': 'not yet measured',
+  'not-measured': 'waiting',
 };
 
 export class ChecksPanel {
@@ -132,7 +132,7 @@ export class ChecksPanel {
         { class: `check-${c.result}`, 'data-check': c.code, title: c.note },
         h('th', { scope: 'row' }, c.code),
         h('td', { class: 'num' }, c.measured === null ? '–' : `${c.measured}${c.unit ? ' ' + c.unit : ''}`),
-        h('td', { class: 'num' }, `${c.min} … ${c.max}`),
+        h('td', { class: 'num' }, `${c.min}–${c.max}`),
         h('td', {}, RESULT_WORDS[c.result] ?? c.result),
       ),
     );
@@ -156,7 +156,7 @@ export class ChecksPanel {
         h(
           'thead',
           {},
-          h('tr', {}, ...['Check', 'Measured', 'Limits', 'Result'].map((c) => h('th', { scope: 'col' }, c))),
+          h('tr', {}, ...['Check', 'Value', 'Limits', 'Result'].map((c) => h('th', { scope: 'col' }, c))),
         ),
         h('tbody', {}, ...rows),
       ),
