@@ -252,6 +252,11 @@ export function createAppService(options: AppServiceOptions): AppService {
       if (batchId !== undefined) board.batchId = batchId;
       return view(await stations.setBoard(stationId, board));
     },
+    'stations.startBatch': async ({ batchId }: P<'stations.startBatch'>) => {
+      const snapshots = await stations.startBatch(batchId);
+      for (const snapshot of snapshots) histories.set(snapshot.id, new StationHistory());
+      return snapshots.map(view);
+    },
     'stations.checks': ({ stationId }: P<'stations.checks'>) => {
       needStation(stationId);
       judgeLive(stationId);

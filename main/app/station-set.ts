@@ -46,6 +46,8 @@ export function combineStationManagers(
     send: (stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | '') =>
       owner(stationId).send(stationId, text, ending),
     setProfile: (stationId: string, profile: unknown) => owner(stationId).setProfile(stationId, profile),
+    // A burn-in batch is the live stations' (replays never belong to one).
+    startBatch: (batchId: string) => live.startBatch(batchId),
     setBoard: (stationId: string, board: Parameters<StationManager['setBoard']>[1]) =>
       owner(stationId).setBoard(stationId, board),
     async close() {

@@ -408,6 +408,25 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       setBoard(st, board);
       return snapshot(st);
     },
+    async startBatch(batchId: string): Promise<StationSnapshot[]> {
+      // One burn-in, one start: every station's current run ends and a run of the batch begins.
+      for (const st of stations.values()) {
+        st.board = { ...st.board, batchId };
+        if (st.assume) continue;
+        if (st.pipeline.state().last !== null) {
+          endRun(st, 'batch-started');
+          st.pipeline = createPipeline(st.profile);
+          st.lines = 0;
+          st.rejected = 0;
+          st.gap = null;
+          startRun(st);
+        } else if (recorder && st.runId !== null) {
+          recorder.setRunInfo(st.runId, { batchId });
+        }
+        emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: true });
+      }
+      return [...stations.values()].map(snapshot);
+    },
     async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
       const st = must(stationId);
       const profile = resolve(stationId, profileJson);

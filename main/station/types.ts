@@ -65,6 +65,8 @@ export interface StationManager extends EventEmitter<StationManagerEvents> {
   send(stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | ''): Promise<void>;
   /** Set the board under test (typed or scanned); a new board id starts a new run. */
   setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot>;
+  /** Start a burn-in batch: every station's run ends and a new run of batch `batchId` begins. */
+  startBatch(batchId: string): Promise<StationSnapshot[]>;
   /** Replace a station's profile: closes the current run and starts a new one. */
   setProfile(stationId: string, profile: unknown): Promise<StationSnapshot>;
   /** Stop every station, close their runs cleanly, flush the recorder. */

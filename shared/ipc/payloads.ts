@@ -43,7 +43,8 @@ export interface StationSnapshot {
   };
 }
 
-export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed' | 'board-changed';
+export type RunEndReason =
+  'completed' | 'stopped' | 'interrupted' | 'profile-changed' | 'board-changed' | 'batch-started';
 
 export interface RunRow {
   id: number;

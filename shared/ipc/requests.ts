@@ -80,6 +80,10 @@ export const requestSchemas = {
         .optional(),
     })
     .strict(),
+  /** Start a burn-in batch: every live station begins a new run of this batch. */
+  'stations.startBatch': z
+    .object({ batchId: z.string().regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces') })
+    .strict(),
   /** The station's latest board checks (also pushed as `checks`). */
   'stations.checks': z.object({ stationId }).strict(),
   'ports.list': z.object({}).strict(),
