@@ -31,6 +31,13 @@ export class RunsView implements View {
       ['none', 'not judged'],
     ].map(([value, label]) => h('option', { value }, label)),
   );
+  private readonly batchInput = h('input', {
+    id: 'batch-id',
+    type: 'text',
+    autocomplete: 'off',
+    maxlength: '64',
+    placeholder: 'e.g. B7',
+  });
   private readonly boardFilter = h('input', {
     id: 'runs-board-filter',
     type: 'search',
@@ -68,6 +75,7 @@ export class RunsView implements View {
           h('label', { for: 'runs-board-filter', class: 'field-label' }, 'Board'),
           this.boardFilter,
         ),
+        this.batchForm(),
       ),
       this.status,
       this.tableHost,
@@ -112,6 +120,7 @@ export class RunsView implements View {
         'Run',
         'Station',
         'Board',
+        'Batch',
         'Verdict',
         'Profile',
         'Started',
@@ -126,7 +135,7 @@ export class RunsView implements View {
     const shown = this.runs.filter((run) => this.passesFilters(run));
     for (const run of shown) body.append(this.row(run));
     if (shown.length === 0)
-      body.append(h('tr', {}, h('td', { colspan: '11', class: 'quiet' }, 'No run matches the filters.')));
+      body.append(h('tr', {}, h('td', { colspan: '12', class: 'quiet' }, 'No run matches the filters.')));
     this.tableHost.replaceChildren(
       h(
         'table',
@@ -193,6 +202,7 @@ export class RunsView implements View {
       h('th', { scope: 'row' }, String(run.id)),
       h('td', {}, run.stationLabel || run.stationId),
       h('td', { class: 'run-board' }, run.boardId ?? '–'),
+      h('td', { class: 'run-batch' }, run.batchId ?? '–'),
       h(
         'td',
         { class: `run-verdict verdict-${run.verdict ?? 'none'}`, 'data-verdict': run.verdict ?? 'none' },
@@ -206,6 +216,38 @@ export class RunsView implements View {
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
       h('td', {}, actions),
     );
+  }
+
+  /** A burn-in batch: every live station ends its run and begins a run of the batch at once. */
+  private batchForm(): HTMLFormElement {
+    const form = h(
+      'form',
+      { class: 'runs-tools batch-form' },
+      h('label', { for: 'batch-id', class: 'field-label' }, 'Start a burn-in batch'),
+      this.batchInput,
+      h('button', { type: 'submit', class: 'btn' }, 'Start batch on every station'),
+    );
+    form.addEventListener('submit', (e) => {
+      e.preventDefault();
+      void this.startBatch();
+    });
+    return form;
+  }
+
+  private async startBatch(): Promise<void> {
+    const batchId = this.batchInput.value.trim();
+    if (!/^[!-~]{1,64}$/.test(batchId)) {
+      this.status.textContent = 'A batch id is 1–64 characters without spaces; nothing was started.';
+      return;
+    }
+    try {
+      const started = (await this.api.request('stations.startBatch', { batchId })) as unknown[];
+      this.status.textContent = `Batch ${batchId} started on ${started.length} station(s): each began a new run.`;
+      this.batchInput.value = '';
+    } catch (err) {
+      this.status.textContent = `Batch ${batchId} was not started: ${errorText(err)}`;
+    }
+    await this.load();
   }
 
   /** Filter by verdict (or "not judged") and by a part of the board id, case-insensitive. */

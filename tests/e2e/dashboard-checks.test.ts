@@ -71,6 +71,7 @@ test('board checks on a live simulated board', { timeout: 240_000 }, async (t) =
     const first = page.locator('#view-runs tbody tr[data-run]', { hasText: 'GS-0002' });
     assert.equal(await first.locator('.run-verdict').getAttribute('data-verdict'), 'fail');
     assert.match((await first.textContent()) ?? '', /board-changed/);
+    assert.equal(await rows.count(), 2);
     await page.selectOption('#runs-verdict-filter', 'fail');
     assert.equal(await rows.count(), 1);
     await page.selectOption('#runs-verdict-filter', '');
@@ -78,6 +79,19 @@ test('board checks on a live simulated board', { timeout: 240_000 }, async (t) =
     assert.equal(await rows.count(), 1);
     assert.match((await rows.first().textContent()) ?? '', /GS-9001/);
     await page.fill('#runs-board-filter', '');
+    // A burn-in batch starts a new run on every station, carrying the batch id.
+    await page.fill('#batch-id', 'B1');
+    await page.keyboard.press('Enter');
+    try {
+      await rows.nth(2).waitFor({ timeout: 15_000 });
+    } catch (err) {
+      t.diagnostic(`status: ${await page.locator('#view-runs .runs-status').textContent()}`);
+      throw err;
+    }
+    assert.match(
+      (await page.locator('#view-runs tbody tr[data-run]', { hasText: 'B1' }).textContent()) ?? '',
+      /GS-9001/,
+    );
     await screenshot(page, 'runs-verdict');
   });
 });
