@@ -16,7 +16,7 @@ import { runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
-import { LiveChecks } from '../checks/live-checks';
+import { LiveChecks } from './live-checks';
 import { runChecks } from '@shared/engine/checks';
 
 /** How exports and reports leave the app. */

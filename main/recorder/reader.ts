@@ -128,7 +128,7 @@ const columnOf: Record<SeriesField, string> = Object.fromEntries(
   SERIES_COLUMNS.map(([f, c]) => [f, c]),
 ) as Record<SeriesField, string>;
 
-/** CSV columns with their units in the header (PROTOCOL section 1 base units). */
+/** CSV columns with their units in the header (base units of docs/telemetry.md). */
 const CSV_COLUMNS: Array<{ header: string; pick: (s: TimedSample) => unknown }> = [
   { header: 't (s)', pick: (s) => s.t },
   { header: 'rx time (s since 1970)', pick: (s) => s.rxS },

@@ -3,7 +3,7 @@
  * or printed by the firmware in a `#` line such as `# board=GS-0042 fw=1.4.2`), the operator,
  * the firmware version and the burn-in batch. A new board id on a station starts a new run.
  */
-import { parseBoardLine } from '@shared/engine/checks/board-line';
+import { parseBoardLine } from './board-line';
 
 export interface StationBoard {
   boardId: string | null;
