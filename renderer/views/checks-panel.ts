@@ -168,5 +168,9 @@ export class ChecksPanel {
 export function verdictBadge(checks: ChecksView | null): HTMLElement | null {
   if (!checks) return null;
   const word = checks.verdict === 'incomplete' ? 'checks running' : checks.verdict;
-  return h('span', { class: `tile-verdict verdict-${checks.verdict}`, 'data-verdict': checks.verdict }, word);
+  return h(
+    'span',
+    { class: `tile-verdict verdict-${checks.verdict}`, 'data-verdict': checks.verdict },
+    checks.board ? `${word} · ${checks.board}` : word,
+  );
 }
