@@ -435,7 +435,7 @@ function openThermistor(): Scenario {
     expected: {
       summary: 'cc, then the raw ntc pins at the rail and the charger asserts its fault output',
       phases: ['cc', 'fault'],
-      alarms: ['fault-pin'],
+      alarms: ['fault-pin', 'sensor-fault'],
       noCritical: false,
       fault: true,
     },
@@ -469,7 +469,7 @@ function looseConnection(): Scenario {
       summary:
         'voltage steps with no current step, then dropouts (current to zero, voltage to the regulation set point)',
       phases: ['cc'],
-      alarms: [],
+      alarms: ['contact'],
       noCritical: false,
       fault: false,
     },
