@@ -15,6 +15,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
+import { parseBoardLine } from '@shared/engine/checks/board-line';
 import { openRunReader } from '../../main/recorder';
 import { until } from '../integration/serial-pty';
 import { buildPath, make } from './firmware-build';
@@ -189,6 +190,8 @@ async function recordCharge(shape: 'TL_KV' | 'TL_CSV' | 'TL_JSON'): Promise<void
     const runs = reader.listRuns();
     assert.equal(runs.length, 1, JSON.stringify(runs));
     const runId = runs[0].id;
+    // The start-up line gives the run its board identity (as the board checks read it).
+    assert.deepEqual(parseBoardLine(sentLines[0]), { board: 'TC-0007', firmware: '1.4.2' });
     // Every byte the board sent, in order, as the recorder kept it.
     const raw = reader.rawLines(runId, undefined, 100_000);
     assert.deepEqual(
