@@ -10,7 +10,9 @@ const stationId = z
   .string()
   .min(1)
   .max(130)
-  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only');
+  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only')
+  // Ids end up in file names and topic paths: no `..` segment may climb out of them.
+  .refine((id) => !id.split('/').includes('..'), 'no ".." segment');
 /** The id of a new station added from the Connect view. */
 const newStationId = z
   .string()
