@@ -72,8 +72,16 @@ export const TABLE_COLUMNS = [
   { key: 'tempC', title: '°C', numeric: true },
   { key: 'ah', title: 'Ah', numeric: true },
   { key: 'alarms', title: 'Alarms', numeric: false },
+  { key: 'verdict', title: 'Verdict', numeric: false },
 ] as const;
 export type ColumnKey = (typeof TABLE_COLUMNS)[number]['key'] | 'trouble';
+export type TableColumn = (typeof TABLE_COLUMNS)[number];
+
+/** The table's columns: the verdict only when some station's board checks exist. */
+export function tableColumns(rows: RackRow[]): TableColumn[] {
+  const verdicts = rows.some((r) => r.values.verdict !== '');
+  return TABLE_COLUMNS.filter((c) => c.key !== 'verdict' || verdicts);
+}
 
 export interface RackRow {
   model: StationModel;
@@ -83,10 +91,9 @@ export interface RackRow {
   numbers: Partial<Record<ColumnKey, number>>;
 }
 
-/** The board id a station reports, when the station snapshot carries one. */
+/** The board under test: typed, scanned or from the firmware; else what its checks name. */
 function boardOf(model: StationModel): string {
-  const board = (model.view as { boardId?: unknown }).boardId;
-  return typeof board === 'string' && board !== '' ? board : '–';
+  return model.view.board?.boardId || model.checks?.board || '–';
 }
 
 export function tableRows(groups: RackGroup[]): RackRow[] {
@@ -115,6 +122,7 @@ export function tableRows(groups: RackGroup[]): RackRow[] {
           ibatA: formatNumber(last?.ibatA, 2),
           tempC: formatNumber(last?.tempC, 1),
           ah: formatNumber(view.state.metrics.ah, 2),
+          verdict: model.checks?.verdict ?? '',
           alarms: alarms
             .map((a) => `${a.level === 'critical' ? '‼ ' : ''}${a.code}${model.isAcked(a) ? ' (ack)' : ''}`)
             .join(', '),

@@ -17,7 +17,7 @@ import {
   groupByBench,
   sortRows,
   tableRows,
-  TABLE_COLUMNS,
+  tableColumns,
   type ColumnKey,
   type RackGroup,
 } from './rack-groups';
@@ -244,7 +244,8 @@ export class RackView implements View {
     const all = tableRows(groups);
     const rows = sortRows(filterRows(all, this.filter.value), this.sortKey, this.descending);
     this.count.textContent = `${rows.length} of ${all.length} stations`;
-    const headCells = TABLE_COLUMNS.map((c) => {
+    const columns = tableColumns(all);
+    const headCells = columns.map((c) => {
       const active = this.sortKey === c.key;
       const sortButton = button(
         c.title,
@@ -291,7 +292,7 @@ export class RackView implements View {
           h(
             'tr',
             { class: 'row-stale', 'data-bench': bench },
-            h('td', { colspan: String(TABLE_COLUMNS.length) }, this.staleNote(group)),
+            h('td', { colspan: String(columns.length) }, this.staleNote(group)),
           ),
         );
         continue;
@@ -303,7 +304,7 @@ export class RackView implements View {
           class: row.rank >= 40 ? 'row-trouble' : row.rank >= 10 ? 'row-attention' : '',
           'data-station': row.model.view.id,
         },
-        ...TABLE_COLUMNS.map((c) =>
+        ...columns.map((c) =>
           h('td', { class: c.numeric ? 'num' : '' }, row.values[c.key] || (c.key === 'alarms' ? '✓' : '')),
         ),
       );
