@@ -19,6 +19,7 @@ const NEEDS = [
   ['ser2net', { cmd: 'ser2net', dirs: ['/usr/sbin'] }, 'ser2net'],
   ['gcc', { cmd: 'gcc' }, 'gcc'],
   ['make', { cmd: 'make' }, 'make'],
+  ['python3', { cmd: 'python3' }, 'python3'],
   ['pkg-config', { cmd: 'pkg-config' }, 'pkg-config'],
   ['avr-gcc', { cmd: 'avr-gcc' }, 'gcc-avr'],
   ['avr-libc', { file: '/usr/lib/avr/include/avr/io.h' }, 'avr-libc'],
@@ -63,7 +64,8 @@ if (absent.length === 0) process.exit(0);
 const packages = [...new Set(absent.map(([, , pkg]) => pkg))];
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 const mayInstall = process.env.TAPERLINE_PREFLIGHT_INSTALL !== '0';
-const aptGet = '/usr/bin/apt-get';
+// TAPERLINE_APT_GET lets the preflight's own test watch the calls without installing anything.
+const aptGet = process.env.TAPERLINE_APT_GET ?? '/usr/bin/apt-get';
 
 if (isRoot && mayInstall && isExecutable(aptGet)) {
   console.log(`preflight: installing ${packages.join(' ')} with apt-get`);

@@ -153,7 +153,7 @@ static void test_shapes(void) {
   tl_end(&l);
   EXPECT_STR(buf, "{\"ibat\":-0.250,\"src\":\"panel\"}*24\n");
 
-  /* key=value: a missing reading is left out; a line with nothing is not sent. */
+  /* key=value: a missing reading is left out; a line with no value is not sent (any shape). */
   tl_init(&l, buf, sizeof buf, TL_KV);
   tl_begin(&l);
   tl_missing(&l, "temp");
@@ -162,6 +162,21 @@ static void test_shapes(void) {
   EXPECT_STR(buf, "vin=17.9*5D\n");
   tl_begin(&l);
   tl_missing(&l, "temp");
+  EXPECT_INT(tl_end(&l), 0);
+  EXPECT_INT(tl_error(&l), TL_ERR_EMPTY);
+  tl_init(&l, buf, sizeof buf, TL_JSON); /* "{}" carries nothing */
+  tl_begin(&l);
+  tl_missing(&l, "temp");
+  EXPECT_INT(tl_end(&l), 0);
+  EXPECT_INT(tl_error(&l), TL_ERR_EMPTY);
+  tl_init(&l, buf, sizeof buf, TL_CSV); /* a row of empty cells carries nothing */
+  tl_begin(&l);
+  tl_missing(&l, "temp");
+  tl_missing(&l, "vbat");
+  EXPECT_INT(tl_end(&l), strlen("temp,vbat*XX\n"));
+  tl_begin(&l);
+  tl_missing(&l, "temp");
+  tl_missing(&l, "vbat");
   EXPECT_INT(tl_end(&l), 0);
   EXPECT_INT(tl_error(&l), TL_ERR_EMPTY);
 }

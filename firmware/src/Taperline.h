@@ -54,6 +54,7 @@ public:
   void word(const __FlashStringHelper *key, const __FlashStringHelper *w) {
     tl_word_P(&line_, (const char *)key, (const char *)w);
   }
+  void word(const char *key, const char *w) { tl_word(&line_, key, w); }
   void missing(const __FlashStringHelper *key) { tl_missing_P(&line_, (const char *)key); }
   void missing(const char *key) { tl_missing(&line_, key); }
 

@@ -76,12 +76,13 @@ extern "C" {
 #define TL_ERR_FULL 0x01u  /* the line did not fit the buffer (or TL_MAX_LINE) */
 #define TL_ERR_KEY 0x02u   /* a key is not [A-Za-z_][A-Za-z0-9_.-]* */
 #define TL_ERR_VALUE 0x04u /* a word value holds a character other than [A-Za-z0-9_.-] */
-#define TL_ERR_EMPTY 0x08u /* a key=value line with no value at all */
+#define TL_ERR_EMPTY 0x08u /* a line with no value at all (Taperline rejects those) */
 
 /* Internal state bits. */
 #define TL__HEADER_SENT 0x10u
 #define TL__HEADER_PASS 0x20u
 #define TL__WAS_HEADER 0x40u
+#define TL__HAS_VALUE 0x80u /* a value (not only missing cells) is on the line */
 #define TL__ERRORS 0x0Fu
 
 typedef struct tl_line {
@@ -169,6 +170,7 @@ TL__OUTLINE static uint8_t tl__key(tl_line *l, const char *key, uint8_t flash) {
 TL__OUTLINE static void tl__fixed(tl_line *l, uint32_t mag, uint8_t neg, uint8_t drop, uint8_t keep) {
   char d[10];
   uint8_t n = 0, i, top;
+  l->state |= TL__HAS_VALUE;
   mag += drop == 0 ? 0u : drop == 1 ? 5u : drop == 2 ? 50u : 500u;
   do {
     d[n++] = (char)('0' + mag % 10u);
@@ -192,7 +194,7 @@ static inline uint32_t tl__mag(int32_t v) { return v < 0 ? 0u - (uint32_t)v : (u
 static inline void tl_begin(tl_line *l) {
   l->len = 0;
   l->fields = 0;
-  l->state &= (uint8_t)~(TL__ERRORS | TL__HEADER_PASS | TL__WAS_HEADER);
+  l->state &= (uint8_t)~(TL__ERRORS | TL__HEADER_PASS | TL__WAS_HEADER | TL__HAS_VALUE);
   if (l->shape == TL_CSV && !(l->state & TL__HEADER_SENT)) l->state |= TL__HEADER_PASS;
   if (l->shape == TL_JSON) tl__put(l, '{');
 }
@@ -232,6 +234,7 @@ static inline void tl_flag_P(tl_line *l, const char *key, int on) { tl__num(l, k
 /* A one-word text value such as src=panel (letters, digits, `_`, `.`, `-`). */
 TL__OUTLINE static void tl__word(tl_line *l, const char *key, uint8_t kflash, const char *word, uint8_t wflash) {
   if (!tl__key(l, key, kflash)) return;
+  l->state |= TL__HAS_VALUE;
   if (l->shape == TL_JSON) tl__put(l, '"');
   if (!tl__puts(l, word, wflash, 0)) l->state |= TL_ERR_VALUE;
   if (l->shape == TL_JSON) tl__put(l, '"');
@@ -262,7 +265,7 @@ static inline uint8_t tl_checksum(const char *s, uint16_t n) {
 TL__OUTLINE static uint16_t tl_end(tl_line *l) {
   uint8_t x, i;
   if (l->state & TL__HEADER_PASS ? l->fields < 2 /* a header needs two names to read as one */
-                                 : l->shape == TL_KV && l->fields == 0)
+                                 : !(l->state & TL__HAS_VALUE))
     l->state |= TL_ERR_EMPTY;
   if (l->shape == TL_JSON) tl__put(l, '}');
   x = tl_checksum(l->buf, l->len);

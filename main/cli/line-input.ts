@@ -2,26 +2,12 @@
  * Where replay and diagnose read lines from: a telemetry file, standard input, or a run of
  * a recording database (read back exactly as if from a file, with its receive times).
  */
-import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { LineInput } from '../sources/line-input';
 import { UsageError } from './errors';
-import {
-  readTelemetryLines,
-  streamTelemetryBytes,
-  streamTelemetryLines,
-  type TimedByteLine,
-  type TimedLine,
-} from './read-lines';
+import { readTelemetryLines, streamTelemetryBytes, streamTelemetryLines } from './read-lines';
 import { openRecordedRun } from './recorded-run';
 
-export interface LineInput {
-  /** The profile the input was recorded with, when it carries one (database runs). */
-  profile: ResolvedProfile | null;
-  /** Fast path: every line, synchronously per chunk. */
-  forEach(onLine: (text: string, rxS: number, tooLong: boolean) => void): Promise<void>;
-  /** Faster still for files: every line as bytes (absent for database runs, which hold text). */
-  forEachBytes?: (onLine: TimedByteLine) => Promise<void>;
-  lines(): AsyncIterable<TimedLine>;
-}
+export type { LineInput };
 
 export interface LineInputOptions {
   db?: string;

@@ -6,7 +6,7 @@
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { EngineEvent, RunSummary } from '@shared/engine/types';
 import type { LineInput } from './line-input';
-import { ProfiledRun } from './profiled-run';
+import { ProfiledRun } from '@shared/engine/assumed-profile';
 import { formatEventText, formatSummaryText, summaryRecord } from './replay-format';
 
 /** Prints events as NDJSON (--events) or as readable lines, in blocks of about 64 kB. */

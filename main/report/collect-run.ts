@@ -7,8 +7,8 @@ import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 import type { RejectReason } from '@shared/telemetry/types';
 import { parseBoardLine, type BoardLine } from '@shared/engine/checks/board-line';
-import type { LineInput } from '../cli/line-input';
-import { ProfiledRun } from '../cli/profiled-run';
+import type { LineInput } from '../sources/line-input';
+import { ProfiledRun } from '@shared/engine/assumed-profile';
 
 /** What a Run report is made of: the run's data and the engine's figures at its end. */
 export interface EngineRun {

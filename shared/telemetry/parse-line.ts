@@ -155,35 +155,26 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
     return parse(from === to ? '' : decoder.decode(bytes.subarray(from, to)), rxS, tooLong);
   }
 
-  function guarded(fn: () => LineResult): LineResult {
-    try {
-      return fn();
-    } catch (err) {
-      // Never reached by design; a guard so that one odd line can never stop a run.
-      return reject(
-        'no-fields',
-        `could not be parsed (${clip(err instanceof Error ? err.message : String(err), 80)})`,
-      );
-    }
-  }
+  // Never reached by design; a guard so that one odd line can never stop a run.
+  const unparsable = (err: unknown): LineResult =>
+    reject(
+      'no-fields',
+      `could not be parsed (${clip(err instanceof Error ? err.message : String(err), 80)})`,
+    );
 
   return {
     parseBytes(bytes, from, to, rxS, tooLong) {
       try {
         return parseBytes(bytes, from, to, rxS, tooLong === true);
-      } catch {
-        return guarded(() => parse(decoder.decode(bytes.subarray(from, to)), rxS, tooLong === true));
+      } catch (err) {
+        return unparsable(err);
       }
     },
     parse(text, rxS, tooLong) {
       try {
         return parse(text, rxS, tooLong === true);
       } catch (err) {
-        // Never reached by design; a guard so that one odd line can never stop a run.
-        return reject(
-          'no-fields',
-          `could not be parsed (${clip(err instanceof Error ? err.message : String(err), 80)})`,
-        );
+        return unparsable(err);
       }
     },
     reset: () => csv.reset(),

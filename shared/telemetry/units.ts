@@ -172,7 +172,7 @@ export function toBase(value: number, factor: number, offset: number, conv: KeyC
 
 /** A value with no suffix: in the key's profile unit (or the base unit), then calibrated. */
 export function unsuffixedToBase(value: number, conv: KeyConversion): number {
-  return (value * conv.unitFactor + conv.unitOffset) * conv.scale + conv.offset;
+  return toBase(value, conv.unitFactor, conv.unitOffset, conv);
 }
 
 /** Why a converted value is refused as `implausible`: it left the range of numbers. */

@@ -24,7 +24,7 @@ for (const shape of ['TL_KV', 'TL_CSV', 'TL_JSON']) {
   const ram = withLib.data + withLib.bss - (base.data + base.bss);
   console.log(
     `ChargerAvr ${shape.padEnd(7)} flash ${withLib.text + withLib.data} B (without the library ${base.text + base.data} B): ` +
-      `library ${flash} B = ${((100 * flash) / 32256).toFixed(1)} % of an Uno's 32256 B, goal < 2048 B ${flash < 2048 ? 'met' : 'NOT met'}; ` +
+      `library ${flash} B = ${((100 * flash) / 32256).toFixed(1)} % of the 32256 B an ATmega328P leaves beside its serial bootloader, goal < 2048 B ${flash < 2048 ? 'met' : 'NOT met'}; ` +
       `RAM ${withLib.data + withLib.bss} B (without ${base.data + base.bss} B): library ${ram} B incl. its 80 B line buffer, goal < 100 B ${ram < 100 ? 'met' : 'NOT met'}`,
   );
 }

@@ -38,8 +38,8 @@ export class LineCli {
   private pending = '';
   private waiting: ((text: string) => void) | null = null;
 
-  constructor(path: string) {
-    this.child = spawn(path, [], { stdio: ['pipe', 'pipe', 'pipe'] });
+  constructor(path: string, args: string[] = []) {
+    this.child = spawn(path, args, { stdio: ['pipe', 'pipe', 'pipe'] });
     this.child.stdout.setEncoding('utf8');
     this.child.stdout.on('data', (d: string) => {
       this.pending += d;

@@ -15,12 +15,12 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
+import { parseBoardLine } from '@shared/engine/checks/board-line';
 import { openRunReader } from '../../main/recorder';
 import { until } from '../integration/serial-pty';
 import { buildPath, make } from './firmware-build';
 
 const repo = resolve(__dirname, '..', '..');
-const BUILD = 'build-sim';
 const VREF_MV = 5000;
 
 interface Row {
@@ -87,16 +87,19 @@ after(() => {
   rmSync(dir, { recursive: true, force: true });
 });
 
-test('a charge run by the sketch in simavr is recorded by `taperline record` line for line, value for value', async () => {
-  make(['avr', 'sim'], { SKETCH_DEFS: '-DBOARD_ID=\\"TC-0007\\"' }, BUILD);
+async function recordCharge(shape: 'TL_KV' | 'TL_CSV' | 'TL_JSON'): Promise<void> {
+  const BUILD = `build-sim-${shape}`;
+  make(['avr', 'sim'], { SKETCH_DEFS: `-DBOARD_ID=\\"TC-0007\\" -DTAPERLINE_SHAPE=${shape}` }, BUILD);
+  // CSV: the header line comes once, after the board line.
+  const head = shape === 'TL_CSV' ? 2 : 1;
   const rows = script();
-  const scriptFile = join(dir, 'charge.txt');
+  const scriptFile = join(dir, `charge-${shape}.txt`);
   writeFileSync(
     scriptFile,
     rows.map((r) => [...pinsMv(r), r.charging ? 0 : 1, r.fault ? 0 : 1].join(' ')).join('\n') + '\n',
   );
-  const uartLog = join(dir, 'uart.log');
-  const profile = join(dir, 'profile.json');
+  const uartLog = join(dir, `uart-${shape}.log`);
+  const profile = join(dir, `profile-${shape}.json`);
   writeFileSync(
     profile,
     JSON.stringify({
@@ -133,7 +136,7 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   });
   const harnessDone = new Promise<number | null>((res) => harness.once('exit', (code) => res(code)));
 
-  const db = join(dir, 'runs.sqlite');
+  const db = join(dir, `runs-${shape}.sqlite`);
   const rec = spawn(
     process.execPath,
     [
@@ -164,7 +167,11 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   const sent = readFileSync(uartLog, 'utf8');
   const sentLines = sent.split('\n').slice(0, -1);
   assert.equal(sent.endsWith('\n'), true);
-  assert.equal(sentLines.length, rows.length + 1, 'the board line and one line a second');
+  assert.equal(
+    sentLines.length,
+    rows.length + head,
+    'the board line (and CSV header), then one line a second',
+  );
   assert.equal(sentLines[0], '# board=TC-0007 fw=1.4.2');
   // The status line is redrawn only as lines arrive: give the last ones a moment, then stop.
   await new Promise((res) => setTimeout(res, 2000));
@@ -172,7 +179,7 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   await new Promise((res) => rec.once('exit', res));
   assert.match(
     recOut,
-    new RegExp(`run 1 closed as stopped, ${rows.length + 1} lines \\(0 rejected\\)`),
+    new RegExp(`run 1 closed as stopped, ${rows.length + head} lines \\(0 rejected\\)`),
     recOut.slice(-800),
   );
   harness.stdin.end(); // unplug the board
@@ -183,6 +190,8 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
     const runs = reader.listRuns();
     assert.equal(runs.length, 1, JSON.stringify(runs));
     const runId = runs[0].id;
+    // The start-up line gives the run its board identity (as the board checks read it).
+    assert.deepEqual(parseBoardLine(sentLines[0]), { board: 'TC-0007', firmware: '1.4.2' });
     // Every byte the board sent, in order, as the recorder kept it.
     const raw = reader.rawLines(runId, undefined, 100_000);
     assert.deepEqual(
@@ -191,16 +200,16 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
     );
     assert.deepEqual(
       raw.map((l) => l.kind),
-      ['firmware', ...rows.map(() => 'sample')],
+      [...(head === 2 ? ['firmware', 'header'] : ['firmware']), ...rows.map(() => 'sample')],
       'no rejected line',
     );
-    assert.equal(runs[0].lines, rows.length + 1);
+    assert.equal(runs[0].lines, rows.length + head);
     // Values exact.
     const samples = reader.allSamples(runId);
     assert.equal(samples.length, rows.length);
     samples.forEach((s, k) => {
       const want = expected(rows[k]);
-      const at = `row ${k}: ${sentLines[k + 1]}`;
+      const at = `row ${k}: ${sentLines[k + head]}`;
       assert.equal(s.deviceS !== undefined ? Math.floor(s.deviceS) : k, k, at);
       assert.equal(s.vbatV, want.vbatV, at);
       assert.equal(s.ibatA, want.ibatA, at);
@@ -222,4 +231,37 @@ test('a charge run by the sketch in simavr is recorded by `taperline record` lin
   } finally {
     reader.close();
   }
+}
+
+test('key=value: a charge run by the sketch in simavr is recorded by `taperline record` line for line, value for value', () =>
+  recordCharge('TL_KV'));
+test('CSV: the same charge, header once, recorded line for line, value for value', () =>
+  recordCharge('TL_CSV'));
+test('JSON: the same charge recorded line for line, value for value', () => recordCharge('TL_JSON'));
+
+test('a line too long for the board buffer is never sent in part: the board says so in a # line', async () => {
+  // A 24-byte buffer on the target: too small for any of the sketch's lines.
+  const BUILD = 'build-sim-small';
+  make(['avr', 'sim'], { SKETCH_DEFS: '-DLINE_BYTES=24' }, BUILD);
+  const scriptFile = join(dir, 'charge-small.txt');
+  writeFileSync(scriptFile, '3000 1000 2500 0 1\n'.repeat(3));
+  const uartLog = join(dir, 'uart-small.log');
+  const harness = spawn(
+    buildPath(BUILD, 'sim', 'charge_harness'),
+    [buildPath(BUILD, 'avr', 'ChargerAvr.elf'), scriptFile, '0', uartLog],
+    { stdio: ['pipe', 'pipe', 'pipe'] },
+  );
+  children.push(harness);
+  let out = '';
+  harness.stdout.on('data', (d: Buffer) => (out += d.toString()));
+  harness.stdin.write('go\n');
+  await until(() => /^done /m.test(out), 60_000, `the harness: ${out}`);
+  harness.stdin.end();
+  await new Promise((res) => harness.once('exit', res));
+  // The start-up line (26 bytes with its newline and NUL) does not fit either: not sent.
+  assert.deepEqual(readFileSync(uartLog, 'utf8').split('\n').slice(0, -1), [
+    '# line not sent, error 1',
+    '# line not sent, error 1',
+    '# line not sent, error 1',
+  ]);
 });

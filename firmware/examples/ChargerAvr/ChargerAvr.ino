@@ -5,11 +5,11 @@
  * Wiring (see the firmware README for the cautions and for other packs):
  *   A0  pack voltage through a divider: pack+ - 15 k - A0 - 10 k - GND (2S Li-ion, 8.4 V -> 3.36 V)
  *   A1  charge current: output of a current-sense amplifier, gain 100, on a 10 mOhm
- *       low-side shunt (1 A -> 1.000 V; 5 A full scale)
+ *       shunt in the charge path (1 A -> 1.000 V; 5 A full scale)
  *   A2  NTC: 10 k pull-up from AVCC to A2, 10 k NTC from A2 to GND (sent raw as `ntc`)
  *   D4  charger's "charging" status output (open drain, low = charging)
  *   D5  charger's "fault" status output (open drain, low = fault)
- *   GND common with the charger's output negative, at the shunt's pack side
+ *   GND common with the pack's negative terminal
  *
  * Profile for Taperline: { "chemistry": "li-ion", "cells": 2, ...,
  *   "thermistor": { "model": "beta", "r25": 10000, "beta": 3435, "pullupOhm": 10000, "adcMax": 1023 } }

@@ -88,6 +88,15 @@ export class FieldTable {
   private readonly byFirst: (KeyEntry[] | undefined)[] = [];
   /** Every key by length, for a key whose end is already known. */
   private readonly byLength: (KeyEntry[] | undefined)[] = [];
+  /**
+   * Tabled keys of 1 to 4 characters by their packed codes (c0 c1 c2 c3 as one integer;
+   * every code is above 32, so the integer also says the length), in a small open-addressed
+   * table: the byte scan finds `vbat` with one probe instead of comparing candidates.
+   */
+  private readonly shortPacked = new Int32Array(SHORT_SLOTS);
+  private readonly shortEntries: (KeyEntry | undefined)[] = new Array<KeyEntry | undefined>(SHORT_SLOTS).fill(
+    undefined,
+  );
 
   constructor(fields: ParserOptions['fields']) {
     if (fields !== undefined && fields !== null && typeof fields === 'object') {
@@ -112,7 +121,33 @@ export class FieldTable {
       const codes = Array.from(key, (_, k) => key.charCodeAt(k));
       const entry: KeyEntry = { key, length: key.length, codes, handler: h };
       (this.byLength[key.length] ??= []).push(entry);
-      if (isTableKey(key)) (this.byFirst[key.charCodeAt(0)] ??= []).push(entry);
+      if (isTableKey(key)) {
+        (this.byFirst[key.charCodeAt(0)] ??= []).push(entry);
+        if (key.length <= 4) this.addShort(packCodes(codes), entry);
+      }
+    }
+  }
+
+  private addShort(packed: number, entry: KeyEntry): void {
+    let slot = shortSlot(packed);
+    for (let probes = 0; probes < SHORT_SLOTS; probes++, slot = (slot + 1) & (SHORT_SLOTS - 1)) {
+      if (this.shortPacked[slot] === 0) {
+        this.shortPacked[slot] = packed;
+        this.shortEntries[slot] = entry;
+        return;
+      }
+    }
+    // Table full (more than 64 short keys): such keys are still found by keyBeforeEqualsBytes.
+  }
+
+  /** The tabled key of 1 to 4 characters whose packed codes are `packed`. */
+  shortKey(packed: number): KeyEntry | undefined {
+    let slot = shortSlot(packed);
+    for (;;) {
+      const here = this.shortPacked[slot];
+      if (here === packed) return this.shortEntries[slot];
+      if (here === 0) return undefined;
+      slot = (slot + 1) & (SHORT_SLOTS - 1);
     }
   }
 
@@ -160,6 +195,20 @@ export class FieldTable {
     }
     return undefined;
   }
+}
+
+const SHORT_SLOTS = 64;
+
+/** c0 c1 c2 c3 as one integer (each code below 128, so it stays a small integer). */
+function packCodes(codes: readonly number[]): number {
+  let packed = 0;
+  for (const c of codes) packed = packed * 256 + c;
+  return packed;
+}
+
+/** Fibonacci hashing of a packed key into the 64 slots. */
+function shortSlot(packed: number): number {
+  return Math.imul(packed, 0x9e3779b1) >>> 26;
 }
 
 function sameAtBytes(codes: readonly number[], bytes: Uint8Array, from: number): boolean {
