@@ -57,7 +57,9 @@ export async function streamTelemetryLines(
     index++;
   });
   const input =
-    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
+    path === '-'
+      ? process.stdin
+      : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
   for await (const chunk of input) {
     framer.push(chunk as Buffer);
   }
@@ -92,7 +94,9 @@ export async function streamTelemetryBytes(
   };
   const framer = LineFramer.ofBytes(handler);
   const input =
-    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
+    path === '-'
+      ? process.stdin
+      : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
   for await (const chunk of input) framer.push(chunk as Buffer);
   framer.end();
   return index;
@@ -109,7 +113,9 @@ export async function* readTelemetryLines(path: string, options: ReadOptions = {
     index++;
   });
   const input =
-    path === '-' ? process.stdin : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
+    path === '-'
+      ? process.stdin
+      : createReadStream(path, { highWaterMark: options.chunkBytes ?? CHUNK_BYTES });
   for await (const chunk of input) {
     framer.push(chunk as Buffer);
     if (batch.length) {
