@@ -107,6 +107,15 @@ export function createAppService(options: AppServiceOptions): AppService {
       historyOf(stationId).addLine(line);
       batcher.addLine(stationId, line);
     },
+    restored: ({ stationId, samples, events }: Parameters<StationManagerListener<'restored'>>[0]) => {
+      // A run continued after a crash: its history is the whole run, and views reload it.
+      const history = new StationHistory();
+      for (const sample of samples) history.addSample(sample);
+      for (const event of events) history.addEvent(event);
+      histories.set(stationId, history);
+      const snapshot = stations.get(stationId);
+      if (snapshot) emit({ push: 'station', data: view(snapshot) });
+    },
     source: ({ stationId }: { stationId: string }) => batcher.markChanged(stationId),
     problem: (problem: Parameters<StationManagerListener<'problem'>>[0]) =>
       emit({ push: 'problem', data: problem }),

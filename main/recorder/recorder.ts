@@ -97,6 +97,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     >(
       'SELECT id, end_rx_s, end_reason, profile_json, last_rx_s FROM runs WHERE station_id = ? ORDER BY id DESC LIMIT 1',
     ),
+    stationOf: db.prepare<[number], { station_id: string }>('SELECT station_id FROM runs WHERE id = ?'),
     reopen: db.prepare(
       'UPDATE runs SET end_rx_s = NULL, end_reason = NULL, writer_pid = ?, writer_host = ? WHERE id = ?',
     ),
@@ -313,27 +314,38 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
 
   const recorder: Recorder = Object.assign(emitter, reader, {
     dbPath,
+    resumableRun(stationId: string, profileJson: unknown, atRxS: number, withinS: number) {
+      const prev = st.resumable.get(stationId);
+      const endRx = prev?.end_rx_s ?? prev?.last_rx_s ?? null;
+      if (
+        !prev ||
+        prev.end_reason !== 'interrupted' ||
+        prev.profile_json !== JSON.stringify(profileJson ?? null) ||
+        endRx === null ||
+        atRxS - endRx > withinS
+      )
+        return null;
+      return { runId: prev.id, lastRxS: endRx };
+    },
+    resumeRun(runId: number) {
+      const prev = st.resumable.get(st.stationOf.get(runId)?.station_id ?? '');
+      if (!prev || prev.id !== runId || prev.end_reason !== 'interrupted')
+        throw new Error(`run ${runId} is not the latest interrupted run of its station`);
+      st.reopen.run(process.pid, HOST, runId);
+      const m = st.maxSeq.get(runId);
+      live.set(runId, { seq: (m?.seq ?? -1) + 1, rollup: new RunRollup(stOpenSlots(runId)) });
+      return { runId, resumed: true, lastRxS: prev.end_rx_s ?? prev.last_rx_s ?? null };
+    },
     startRun(start: RunStart, opts: { resumeWithinS?: number } = {}) {
       const profileJson = JSON.stringify(start.profileJson ?? null);
       if (opts.resumeWithinS !== undefined) {
-        const prev = st.resumable.get(start.stationId);
-        const endRx = prev?.end_rx_s ?? prev?.last_rx_s ?? null;
-        if (
-          prev &&
-          prev.end_reason === 'interrupted' &&
-          prev.profile_json === profileJson &&
-          endRx !== null &&
-          start.startRxS - endRx <= opts.resumeWithinS
-        ) {
-          st.reopen.run(process.pid, HOST, prev.id);
-          const m = st.maxSeq.get(prev.id);
-          const slots = stOpenSlots(prev.id);
-          live.set(prev.id, {
-            seq: (m?.seq ?? -1) + 1,
-            rollup: new RunRollup(slots),
-          });
-          return { runId: prev.id, resumed: true, lastRxS: endRx };
-        }
+        const found = recorder.resumableRun(
+          start.stationId,
+          start.profileJson,
+          start.startRxS,
+          opts.resumeWithinS,
+        );
+        if (found) return recorder.resumeRun(found.runId);
       }
       const columns = [
         start.stationId,

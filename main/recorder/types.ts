@@ -84,6 +84,19 @@ export interface RecorderEvents {
 export interface Recorder extends RunReader {
   readonly dbPath: string;
   /**
+   * The station's latest run when a crash left it (closed as `interrupted` at open) with the
+   * same profile, its last line no more than `withinS` before `atRxS`; else null. Whether the
+   * same pack is still on charge is the caller's call (the station manager checks continuity).
+   */
+  resumableRun(
+    stationId: string,
+    profileJson: unknown,
+    atRxS: number,
+    withinS: number,
+  ): { runId: number; lastRxS: number } | null;
+  /** Continue an interrupted run found by resumableRun: it is open again, written by this process. */
+  resumeRun(runId: number): { runId: number; resumed: true; lastRxS: number | null };
+  /**
    * Start a run. When `resumeWithinS` is set and the same station's latest run was closed
    * as `interrupted` (a crash) no longer than that before `startRxS`, with the same profile,
    * that run is reopened and continued instead.
