@@ -193,7 +193,7 @@ export async function runUnplugSoak(options: SoakOptions): Promise<SoakResult> {
   }
 
   let seq = 0;
-  let writeError: Error | null = null;
+  let writeError: Error | null;
   try {
     if (!(await waitFor(() => / open at /.test(out), 15_000)))
       throw new Error(`the recorder did not open the port: ${out}`);
