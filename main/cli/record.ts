@@ -163,6 +163,13 @@ async function record(options: RecordOptions): Promise<void> {
     if (!(err instanceof RecorderOpenError)) throw err;
     process.stderr.write(`taperline: ${err.message}. The live display continues without recording.\n`);
   }
+  for (const imported of recorder?.importedSpills ?? []) {
+    process.stdout.write(
+      imported.error === undefined
+        ? `Imported ${imported.rows} rows an earlier stop could not write, from ${imported.path} (file removed).\n`
+        : `taperline: could not import ${imported.path} (${imported.error}); it is kept and tried again at the next open.\n`,
+    );
+  }
   const manager: StationManager = createStationManager({ recorder, resumeWithinS });
   const snapshots = () => manager.list();
   manager.on('event', ({ stationId, event }) => {
@@ -216,11 +223,18 @@ async function record(options: RecordOptions): Promise<void> {
   clearInterval(refresh);
   const last = snapshots();
   await manager.close();
-  recorder?.close();
+  const closed = recorder?.close() ?? { unwritten: 0, spill: null };
   display.update(last, true);
+  const complete = recorder !== null && closed.unwritten === 0;
   for (const s of last) {
+    const run =
+      s.runId === null || !recorder
+        ? 'not recorded'
+        : complete
+          ? `run ${s.runId} closed as stopped`
+          : `run ${s.runId} stopped, not all of it in the database (see below)`;
     process.stdout.write(
-      `${s.label}: ${s.runId !== null && recorder ? `run ${s.runId} closed as stopped` : 'not recorded'}, ${s.lines} lines (${s.rejected} rejected), ${s.state.metrics.ah.toFixed(3)} Ah\n`,
+      `${s.label}: ${run}, ${s.lines} lines (${s.rejected} rejected), ${s.state.metrics.ah.toFixed(3)} Ah\n`,
     );
   }
   const health = recorder?.health();
@@ -228,4 +242,12 @@ async function record(options: RecordOptions): Promise<void> {
     process.stdout.write(
       `${health.dropped} rows could not be written and were dropped (see the problems above).\n`,
     );
+  if (closed.unwritten > 0) {
+    process.stderr.write(
+      closed.spill !== null
+        ? `taperline: ${closed.unwritten} rows could not be written to ${dbPath} (${closed.reason}). They were saved to ${closed.spill}; the next \`taperline record --db ${dbPath}\` (or serve) imports them and closes the run. Free some space first.\n`
+        : `taperline: ${closed.unwritten} rows could not be written to ${dbPath} (${closed.reason}) nor saved to a spill file (${closed.spillError}); they are lost. Free some space before recording again.\n`,
+    );
+    process.exitCode = 1;
+  }
 }

@@ -118,6 +118,28 @@ export interface Recorder extends RunReader {
   health(): RecorderHealth;
   on<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
   off<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
-  /** Flush, checkpoint the WAL and close the file. */
-  close(): void;
+  /** Spill files of earlier closes imported (or not: `error`) when this recorder opened. */
+  readonly importedSpills: SpillImport[];
+  /**
+   * Flush, checkpoint the WAL and close the file. Rows that still cannot be written are saved
+   * to a spill file (NDJSON next to the database, else in the temporary folder) that the next
+   * open imports; the result says how many and where.
+   */
+  close(): RecorderCloseResult;
+}
+
+export interface SpillImport {
+  path: string;
+  rows: number;
+  error?: string;
+}
+
+export interface RecorderCloseResult {
+  /** Rows (lines, samples, events, run starts and ends) not in the database at close. */
+  unwritten: number;
+  /** Why they could not be written. */
+  reason?: string;
+  /** Where they were saved; null when nothing was left or the spill could not be written. */
+  spill: string | null;
+  spillError?: string;
 }
