@@ -200,7 +200,17 @@ export function createAppService(options: AppServiceOptions): AppService {
       };
     },
     'stations.ackAlarm': ({ stationId, code, t }: P<'stations.ackAlarm'>) => {
-      needStation(stationId);
+      const snapshot = needStation(stationId);
+      // Only an alarm this station raised can be acknowledged: acks travel with every station push.
+      const raised =
+        snapshot.state.activeAlarms.some((a) => a.code === code && a.t === t) ||
+        historyOf(stationId)
+          .eventsFrom()
+          .some((e) => e.type === 'alarm' && e.code === code && e.t === t);
+      if (!raised)
+        throw new RequestError(
+          `station "${stationId}" raised no alarm "${code}" at t=${t}: nothing to acknowledge (the alarm may have cleared)`,
+        );
       const ack = acks.ack(stationId, code, t);
       emit({ push: 'alarm-ack', data: ack });
       batcher.markChanged(stationId);

@@ -12,7 +12,7 @@ import { StationConfigError } from '../station/errors';
 import { createStationManager, MAX_STATIONS } from '../station/manager';
 import type { StationManager, StationSnapshot } from '../station/types';
 import { UsageError } from './errors';
-import { nonNegativeNumber, positiveInteger } from './options';
+import { baudRate as parseBaudRate, nonNegativeNumber } from './options';
 import { readValidatedProfileJson } from './profile-file';
 
 interface RecordOptions {
@@ -141,12 +141,17 @@ export function registerRecord(program: Command): void {
 }
 
 async function record(options: RecordOptions): Promise<void> {
-  // Baud rates go to the OS as they are; a positive integer is all that can be checked here.
-  const baudRate = positiveInteger('--baud', options.baud, '115200');
+  // The OS decides which rates a port takes; a whole number in the range any bridge can run is checked here.
+  const baudRate = parseBaudRate('--baud', options.baud);
   const resumeWithinS = nonNegativeNumber('--resume-within', options.resumeWithin, 'seconds');
   const statusEveryS = nonNegativeNumber('--status-every', options.statusEvery, 'seconds');
   const ports = [...new Set(options.port)];
   if (ports.length === 0) throw new UsageError('give at least one --port PATH (see `taperline ports`)');
+  // An empty path would wait forever for a device that can never appear.
+  if (ports.some((p) => p.trim() === ''))
+    throw new UsageError(
+      '--port needs a device path such as /dev/ttyUSB0 (got an empty one); nothing was recorded: see `taperline ports` for the ports here',
+    );
   // Checked before anything starts, so no run is opened only to be closed again.
   if (ports.length > MAX_STATIONS)
     throw new UsageError(
