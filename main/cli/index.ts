@@ -1,4 +1,4 @@
-/** The `taperline` command line (PROTOCOL section 4). Each command lives in its own module. */
+/** The `taperline` command line (docs/cli.md). Each command lives in its own module. */
 import { Command, CommanderError } from 'commander';
 import { UsageError } from './errors';
 import { registerReplay } from './replay';
@@ -8,6 +8,7 @@ import { registerRecord } from './record';
 import { registerServe } from './serve';
 import { registerReport } from './report';
 import { registerDiagnose } from './diagnose';
+import { registerCheck } from './check';
 
 export async function runCli(argv: string[]): Promise<number> {
   const program = new Command('taperline')
@@ -22,6 +23,7 @@ export async function runCli(argv: string[]): Promise<number> {
     registerServe,
     registerReport,
     registerDiagnose,
+    registerCheck,
   ]) {
     register(program);
   }

@@ -12,7 +12,9 @@ const BENCHES = [
   'replay-bench.ts',
   'record-bench.ts',
   'chart-bench.ts',
+  'firmware-size-bench.ts',
   'unplug-bench.ts',
+  'checks-bench.ts',
 ];
 const extra = process.argv.slice(2);
 let failed = 0;

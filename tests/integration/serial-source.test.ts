@@ -55,7 +55,7 @@ test('lines arrive framed on a pty pair: \\r dropped, blank lines kept, sends ar
     await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
     const device = await openDevice(pair.device);
     const before = Date.now() / 1000;
-    // PROTOCOL section 1 example line, once with \r\n, then a blank line, then split across writes.
+    // docs/telemetry.md example line, once with \r\n, then a blank line, then split across writes.
     await write(device, 't=812.5 vbat=8.214 ibat=0.598 temp=27.1\r\n\n');
     await write(device, '{"t":813.5,"vb');
     await write(device, 'at":8.215}\n');
@@ -103,7 +103,7 @@ test('a 10 MB burst without newline becomes one cut line of 4096 bytes, then the
     await until(() => got.lines.length >= 2, 30_000, 'the cut line and the next one');
     clearInterval(sampler);
     assert.equal(got.lines.length, 2);
-    // PROTOCOL section 1: lines are at most 4096 bytes; a longer run is cut and rejected as line-too-long.
+    // docs/telemetry.md: lines are at most 4096 bytes; a longer run is cut and rejected as line-too-long.
     assert.equal(got.lines[0].tooLong, true);
     assert.equal(Buffer.byteLength(got.lines[0].text), 4096);
     assert.deepEqual([got.lines[1].text, got.lines[1].tooLong], ['vbat=8.2', false]);
@@ -127,7 +127,7 @@ test('a line of exactly 4096 bytes plus \\r\\n is whole; 4097 bytes is cut (the 
     source.start();
     await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
     const device = await openDevice(pair.device);
-    // PROTOCOL section 1: at most 4096 bytes per line, not counting the newline and one \r before it.
+    // docs/telemetry.md: at most 4096 bytes per line, not counting the newline and one \r before it.
     await write(device, 'B'.repeat(4096) + '\r\n' + 'C'.repeat(4097) + '\nvbat=8.2\n');
     await until(() => got.lines.length >= 3, 5000, 'three lines');
     assert.deepEqual(
