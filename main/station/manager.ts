@@ -144,7 +144,8 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
             ok: false,
             problem: st.records
               ? 'not recording: no database is open'
-              : 'not recorded (a replay of a recorded run)',
+              : // Worded "not recording: …" like the no-database case: a deliberate choice, not a failure.
+                'not recording: a replay of a recorded run is not recorded again',
           },
       board: { ...st.board },
     };
