@@ -270,9 +270,15 @@ export class Store extends Hub<StoreEvents> {
           this.stations.set(view.id, created);
           void this.loadHistory(created);
         } else {
-          if (model.view.runId !== view.runId && model.loaded) model.resetRun();
+          const newRun = model.view.runId !== view.runId && model.loaded;
+          if (newRun) model.resetRun();
           model.view = view;
           model.acks = readAcks(view);
+          // A run continued after a crash brings its earlier part: load the whole run's history.
+          if (newRun && view.runId !== null) {
+            model.beginReload(view);
+            void this.loadHistory(model);
+          }
         }
         this.emit('stations');
         return;

@@ -103,7 +103,14 @@ export async function startBackend(options: BackendOptions): Promise<Backend> {
       await subscriber?.stop();
       service.close();
       await stations.close();
-      recorder?.close();
+      const closed = recorder?.close();
+      // Rows a full disk kept out of the database: say how many and where they were saved.
+      if (closed && closed.unwritten > 0) {
+        process.stderr.write(
+          `taperline: ${closed.unwritten} rows could not be written (${closed.reason}); ${closed.spill !== null ? `saved to ${closed.spill}, imported at the next open` : `not saved either (${closed.spillError})`}\n`,
+        );
+        process.exitCode = 1;
+      }
     })());
 
   try {

@@ -130,6 +130,15 @@ export function createAppService(options: AppServiceOptions): AppService {
       historyOf(stationId).addLine(line);
       batcher.addLine(stationId, line);
     },
+    restored: ({ stationId, samples, events }: Parameters<StationManagerListener<'restored'>>[0]) => {
+      // A run continued after a crash: its history is the whole run, and views reload it.
+      const history = new StationHistory();
+      for (const sample of samples) history.addSample(sample);
+      for (const event of events) history.addEvent(event);
+      histories.set(stationId, history);
+      const snapshot = stations.get(stationId);
+      if (snapshot) emit({ push: 'station', data: view(snapshot) });
+    },
     source: ({ stationId }: { stationId: string }) => batcher.markChanged(stationId),
     board: ({ stationId, newRun }: { stationId: string; newRun: boolean }) => {
       // A new board is a new run with a new time axis: the old history belongs to the closed run.
@@ -219,7 +228,17 @@ export function createAppService(options: AppServiceOptions): AppService {
       };
     },
     'stations.ackAlarm': ({ stationId, code, t }: P<'stations.ackAlarm'>) => {
-      needStation(stationId);
+      const snapshot = needStation(stationId);
+      // Only an alarm this station raised can be acknowledged: acks travel with every station push.
+      const raised =
+        snapshot.state.activeAlarms.some((a) => a.code === code && a.t === t) ||
+        historyOf(stationId)
+          .eventsFrom()
+          .some((e) => e.type === 'alarm' && e.code === code && e.t === t);
+      if (!raised)
+        throw new RequestError(
+          `station "${stationId}" raised no alarm "${code}" at t=${t}: nothing to acknowledge (the alarm may have cleared)`,
+        );
       const ack = acks.ack(stationId, code, t);
       emit({ push: 'alarm-ack', data: ack });
       batcher.markChanged(stationId);

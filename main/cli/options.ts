@@ -60,3 +60,17 @@ export function speedOrMax(name: string, text: string): number | 'max' {
   if (!Number.isFinite(value) || value <= 0) refuse(name, 'a positive number or max', text);
   return value;
 }
+
+/**
+ * Fastest baud rate taken: 12 Mbaud, the top rate of the fastest USB-serial bridge chips
+ * (from memory); Linux custom rates (BOTHER) go no higher in practice.
+ */
+export const MAX_BAUD = 12_000_000;
+
+/** A serial baud rate: a whole number 1..MAX_BAUD, e.g. `--baud 115200`. */
+export function baudRate(name: string, text: string): number {
+  const value = numberFrom(text);
+  if (!Number.isSafeInteger(value) || value <= 0 || value > MAX_BAUD)
+    refuse(name, `a baud rate, a whole number from 1 to ${MAX_BAUD} (e.g. 115200)`, text);
+  return value;
+}

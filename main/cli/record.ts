@@ -18,7 +18,7 @@ import { InputFileError } from '../app/input-file-error';
 import { stationsFromOptions } from '../app/station-options';
 import { startPublisher, type Publisher } from '../mqtt/publisher';
 import { UsageError } from './errors';
-import { nonNegativeNumber, positiveInteger, positiveNumber } from './options';
+import { baudRate as parseBaudRate, nonNegativeNumber, positiveNumber } from './options';
 import { readValidatedProfileJson } from './profile-file';
 
 interface RecordOptions {
@@ -160,14 +160,19 @@ export function registerRecord(program: Command): void {
 }
 
 async function record(options: RecordOptions): Promise<void> {
-  // Baud rates go to the OS as they are; a positive integer is all that can be checked here.
-  const baudRate = positiveInteger('--baud', options.baud, '115200');
+  // The OS decides which rates a port takes; a whole number in the range any bridge can run is checked here.
+  const baudRate = parseBaudRate('--baud', options.baud);
   const resumeWithinS = nonNegativeNumber('--resume-within', options.resumeWithin, 'seconds');
   const statusEveryS = nonNegativeNumber('--status-every', options.statusEvery, 'seconds');
   const ports = [...new Set(options.port)];
   const simulate = options.simulate ?? [];
   if (ports.length === 0 && simulate.length === 0)
     throw new UsageError('give at least one --port PATH (see `taperline ports`) or --simulate SCENARIO');
+  // An empty path would wait forever for a device that can never appear.
+  if (ports.some((p) => p.trim() === ''))
+    throw new UsageError(
+      '--port needs a device path such as /dev/ttyUSB0 (got an empty one); nothing was recorded: see `taperline ports` for the ports here',
+    );
   // Checked before anything starts, so no run is opened only to be closed again.
   if (ports.length + simulate.length > MAX_STATIONS)
     throw new UsageError(
@@ -200,6 +205,13 @@ async function record(options: RecordOptions): Promise<void> {
   } catch (err) {
     if (!(err instanceof RecorderOpenError)) throw err;
     process.stderr.write(`taperline: ${err.message}. The live display continues without recording.\n`);
+  }
+  for (const imported of recorder?.importedSpills ?? []) {
+    process.stdout.write(
+      imported.error === undefined
+        ? `Imported ${imported.rows} rows an earlier stop could not write, from ${imported.path} (file removed).\n`
+        : `taperline: could not import ${imported.path} (${imported.error}); it is kept and tried again at the next open.\n`,
+    );
   }
   const manager: StationManager = createStationManager({ recorder, resumeWithinS });
   const snapshots = () => manager.list();
@@ -271,11 +283,18 @@ async function record(options: RecordOptions): Promise<void> {
       `Published ${p.acknowledged} of ${p.published} messages to the broker${p.dropped > 0 ? ` (${p.dropped} dropped: the broker was away too long)` : ''}.\n`,
     );
   }
-  recorder?.close();
+  const closed = recorder?.close() ?? { unwritten: 0, spill: null };
   display.update(last, true);
+  const complete = recorder !== null && closed.unwritten === 0;
   for (const s of last) {
+    const run =
+      s.runId === null || !recorder
+        ? 'not recorded'
+        : complete
+          ? `run ${s.runId} closed as stopped`
+          : `run ${s.runId} stopped, not all of it in the database (see below)`;
     process.stdout.write(
-      `${s.label}: ${s.runId !== null && recorder ? `run ${s.runId} closed as stopped` : 'not recorded'}, ${s.lines} lines (${s.rejected} rejected), ${s.state.metrics.ah.toFixed(3)} Ah\n`,
+      `${s.label}: ${run}, ${s.lines} lines (${s.rejected} rejected), ${s.state.metrics.ah.toFixed(3)} Ah\n`,
     );
   }
   const health = recorder?.health();
@@ -283,4 +302,12 @@ async function record(options: RecordOptions): Promise<void> {
     process.stdout.write(
       `${health.dropped} rows could not be written and were dropped (see the problems above).\n`,
     );
+  if (closed.unwritten > 0) {
+    process.stderr.write(
+      closed.spill !== null
+        ? `taperline: ${closed.unwritten} rows could not be written to ${dbPath} (${closed.reason}). They were saved to ${closed.spill}; the next \`taperline record --db ${dbPath}\` (or serve) imports them and closes the run. Free some space first.\n`
+        : `taperline: ${closed.unwritten} rows could not be written to ${dbPath} (${closed.reason}) nor saved to a spill file (${closed.spillError}); they are lost. Free some space before recording again.\n`,
+    );
+    process.exitCode = 1;
+  }
 }

@@ -1,19 +1,44 @@
 /**
  * The Electron main process's handle on its backend child. better-sqlite3 is compiled for
  * Node's ABI, not Electron's, so the service runs in a plain Node process forked from the
- * bundled CLI (`cli.cjs serve --electron-child`), with `execPath` the Node that ran
- * `npm start` (TAPERLINE_NODE, set by bin/start.cjs), else `node` from PATH.
+ * bundled CLI (`cli.cjs serve --electron-child`): in a packaged app the Node runtime packed
+ * with it; from a checkout the Node that ran `npm start` (TAPERLINE_NODE, set by
+ * bin/start.cjs), else `node` from PATH.
  */
 import { fork, type ChildProcess } from 'node:child_process';
+import { join } from 'node:path';
 import type { PushEnvelope } from '@shared/ipc/pushes';
 import type { ReplyEnvelope, RequestEnvelope } from '@shared/ipc/requests';
 import { isChildMessage, type ChildToParent, type ParentToChild } from '../app/child-protocol';
 
-/** Environment variable naming the Node executable that runs the backend. */
+/** Environment variable naming the Node executable that runs the backend (development only). */
 export const NODE_ENV_VAR = 'TAPERLINE_NODE';
 
 export function nodeExecutable(env: NodeJS.ProcessEnv = process.env): string {
   return env[NODE_ENV_VAR] || 'node';
+}
+
+/**
+ * Where the backend comes from. A packaged app runs the Node runtime it carries
+ * (resources/node, see build/stage-node.cjs) on the CLI bundle kept outside app.asar; nothing
+ * is looked up on PATH and TAPERLINE_NODE is ignored, so another program cannot stand in for
+ * it. From a checkout (`npm start`): TAPERLINE_NODE, else `node`, on dist/cli.cjs.
+ */
+export function backendRuntime(where: {
+  isPackaged: boolean;
+  resourcesPath: string;
+  distDir: string;
+  platform?: NodeJS.Platform;
+  env?: NodeJS.ProcessEnv;
+}): { nodePath: string; cliPath: string } {
+  const platform = where.platform ?? process.platform;
+  if (where.isPackaged) {
+    return {
+      nodePath: join(where.resourcesPath, 'node', ...(platform === 'win32' ? ['node.exe'] : ['bin', 'node'])),
+      cliPath: join(where.resourcesPath, 'app.asar.unpacked', 'dist', 'cli.cjs'),
+    };
+  }
+  return { nodePath: nodeExecutable(where.env), cliPath: join(where.distDir, 'cli.cjs') };
 }
 
 export interface BackendProcessOptions {
@@ -93,7 +118,7 @@ export function startBackendProcess(options: BackendProcessOptions): BackendProc
   child.on('error', (err) => {
     // A failed spawn (no such node) emits 'error' and never 'exit': end here, or requests wait forever.
     if (child.pid === undefined) {
-      fatal ??= `the backend could not start (${err.message}); is Node installed? set ${NODE_ENV_VAR} to its path`;
+      fatal ??= `the backend could not start (${err.message}); is Node installed? from a checkout set ${NODE_ENV_VAR} to its path; a packaged app runs the one in its resources/node`;
       end(fatal);
     } else if (!child.connected) {
       end(fatal ?? `the backend cannot be reached (${err.message})`);

@@ -19,7 +19,7 @@ import {
 } from 'electron';
 import { IPC_CHANNELS } from '@shared/ipc/channels';
 import type { PushEnvelope } from '@shared/ipc/pushes';
-import { startBackendProcess, type BackendProcess } from './backend-process';
+import { backendRuntime, startBackendProcess, type BackendProcess } from './backend-process';
 import { handleRendererRequest } from './ipc-relay';
 import { menuTemplate, SAFETY_CAUTION } from './menu';
 import { answerAppRequest } from './protocol';
@@ -77,8 +77,14 @@ async function start(): Promise<void> {
   session.defaultSession.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
   session.defaultSession.setPermissionCheckHandler(() => false);
 
+  const runtime = backendRuntime({
+    isPackaged: app.isPackaged,
+    resourcesPath: process.resourcesPath,
+    distDir,
+  });
   backend = startBackendProcess({
-    cliPath: join(distDir, 'cli.cjs'),
+    cliPath: runtime.cliPath,
+    nodePath: runtime.nodePath,
     serveArgs: backendArgsFrom(process.argv),
     onPush: relayPush,
     choosePath: async (suggestedName, what) => {

@@ -6,6 +6,7 @@ import { stringify } from 'csv-stringify';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { SourceKind } from '@shared/telemetry/types';
 import type { FeedLine } from '../station/types';
+import { inertCell } from './csv-safe';
 import { ROLLUP_LEVELS_S, SERIES_COLUMNS } from './schema';
 import type { OverviewBucket, RunEndReason, RunReader, RunRow, SeriesField } from './types';
 
@@ -279,12 +280,16 @@ export function createRunReader(db: Database.Database): RunReader {
     },
     async exportCsv(runId, out: Writable) {
       const extraKeys = q.extraKeys.all(runId).map((r) => r.key);
-      const header = [...CSV_COLUMNS.map((c) => c.header), ...extraKeys];
+      // Extra channel names and values come from the device: no cell may run as a formula.
+      const header = [...CSV_COLUMNS.map((c) => c.header), ...extraKeys.map((k) => String(inertCell(k)))];
       function* records() {
         for (const page of samplePages(runId))
           for (const row of page) {
             const s = toTimedSample(row);
-            yield [...CSV_COLUMNS.map((c) => c.pick(s)), ...extraKeys.map((k) => s.extra[k])];
+            yield [
+              ...CSV_COLUMNS.map((c) => inertCell(c.pick(s))),
+              ...extraKeys.map((k) => inertCell(s.extra[k])),
+            ];
           }
       }
       // pipeline carries backpressure and, when `out` errors or closes early (a full disk, an

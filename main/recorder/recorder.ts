@@ -3,7 +3,7 @@
  * line. Writes are queued and committed in batches; reads go through the RunReader.
  */
 import { EventEmitter } from 'node:events';
-import { statSync } from 'node:fs';
+import { rmSync, statSync } from 'node:fs';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import { closeInterruptedRuns, HOST } from './crash-recovery';
 import { openDatabase } from './database';
@@ -12,14 +12,17 @@ import { defaultDbPath } from './paths';
 import { createRunReader } from './reader';
 import { RunRollup, slotFromRow, slotParams, type RollupSlot } from './rollup';
 import { SERIES_COLUMNS } from './schema';
+import { findSpills, readSpill, writeSpill } from './spill';
 import type Database from 'better-sqlite3';
 import type {
   Recorder,
+  RecorderCloseResult,
   RecorderHealth,
   RunEndReason,
   RunInfo,
   RunStart,
   RunTotals,
+  SpillImport,
   StoredLine,
 } from './types';
 
@@ -119,6 +122,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     >(
       'SELECT id, end_rx_s, end_reason, profile_json, last_rx_s FROM runs WHERE station_id = ? ORDER BY id DESC LIMIT 1',
     ),
+    stationOf: db.prepare<[number], { station_id: string }>('SELECT station_id FROM runs WHERE id = ?'),
     reopen: db.prepare(
       'UPDATE runs SET end_rx_s = NULL, end_reason = NULL, writer_pid = ?, writer_host = ? WHERE id = ?',
     ),
@@ -129,6 +133,32 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       'SELECT * FROM rollup WHERE run_id = ? AND idx = (SELECT max(idx) FROM rollup r2 WHERE r2.run_id = rollup.run_id AND r2.level_s = rollup.level_s)',
     ),
   };
+
+  // Rows a previous close could not write (disk full) come in before anything else.
+  const importedSpills: SpillImport[] = [];
+  for (const path of findSpills(dbPath)) {
+    try {
+      const spill = readSpill<Op, RunTotals>(path);
+      db.transaction(() => {
+        for (const op of spill.ops) writeOp(op);
+        for (const [runId, t] of spill.totals)
+          st.totals.run(
+            t.durationS,
+            t.ah,
+            t.wh,
+            t.lines,
+            t.rejected,
+            t.phaseS ? JSON.stringify(t.phaseS) : null,
+            runId,
+          );
+        for (const [runId, rx] of spill.lastRx) st.lastRx.run(rx, runId);
+      })();
+      rmSync(path, { force: true });
+      importedSpills.push({ path, rows: spill.ops.length });
+    } catch (err) {
+      importedSpills.push({ path, rows: 0, error: describeDbError(err, dbPath) });
+    }
+  }
 
   try {
     closeInterruptedRuns(db);
@@ -341,27 +371,38 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
 
   const recorder: Recorder = Object.assign(emitter, reader, {
     dbPath,
+    resumableRun(stationId: string, profileJson: unknown, atRxS: number, withinS: number) {
+      const prev = st.resumable.get(stationId);
+      const endRx = prev?.end_rx_s ?? prev?.last_rx_s ?? null;
+      if (
+        !prev ||
+        prev.end_reason !== 'interrupted' ||
+        prev.profile_json !== JSON.stringify(profileJson ?? null) ||
+        endRx === null ||
+        atRxS - endRx > withinS
+      )
+        return null;
+      return { runId: prev.id, lastRxS: endRx };
+    },
+    resumeRun(runId: number) {
+      const prev = st.resumable.get(st.stationOf.get(runId)?.station_id ?? '');
+      if (!prev || prev.id !== runId || prev.end_reason !== 'interrupted')
+        throw new Error(`run ${runId} is not the latest interrupted run of its station`);
+      st.reopen.run(process.pid, HOST, runId);
+      const m = st.maxSeq.get(runId);
+      live.set(runId, { seq: (m?.seq ?? -1) + 1, rollup: new RunRollup(stOpenSlots(runId)) });
+      return { runId, resumed: true, lastRxS: prev.end_rx_s ?? prev.last_rx_s ?? null };
+    },
     startRun(start: RunStart, opts: { resumeWithinS?: number } = {}) {
       const profileJson = JSON.stringify(start.profileJson ?? null);
       if (opts.resumeWithinS !== undefined) {
-        const prev = st.resumable.get(start.stationId);
-        const endRx = prev?.end_rx_s ?? prev?.last_rx_s ?? null;
-        if (
-          prev &&
-          prev.end_reason === 'interrupted' &&
-          prev.profile_json === profileJson &&
-          endRx !== null &&
-          start.startRxS - endRx <= opts.resumeWithinS
-        ) {
-          st.reopen.run(process.pid, HOST, prev.id);
-          const m = st.maxSeq.get(prev.id);
-          const slots = stOpenSlots(prev.id);
-          live.set(prev.id, {
-            seq: (m?.seq ?? -1) + 1,
-            rollup: new RunRollup(slots),
-          });
-          return { runId: prev.id, resumed: true, lastRxS: endRx };
-        }
+        const found = recorder.resumableRun(
+          start.stationId,
+          start.profileJson,
+          start.startRxS,
+          opts.resumeWithinS,
+        );
+        if (found) return recorder.resumeRun(found.runId);
       }
       const columns = [
         start.stationId,
@@ -445,11 +486,14 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     health(): RecorderHealth {
       return { ok: problem === null, problem, pending: queue.length, dropped };
     },
-    close() {
-      if (closed) return;
+    importedSpills,
+    close(): RecorderCloseResult {
+      if (closed) return { unwritten: 0, spill: null };
       clearInterval(timer);
       flush();
-      const lost = queue.length;
+      const ops = queue;
+      const totals = [...pendingTotals];
+      const lastRx = [...pendingLastRx];
       closed = true;
       try {
         db.pragma('wal_checkpoint(TRUNCATE)');
@@ -457,12 +501,24 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
         // Checkpointing is an optimisation; the WAL is replayed at the next open anyway.
       }
       db.close();
-      if (lost > 0) {
-        emitter.emit('problem', {
-          level: 'critical',
-          message: `closing the recorder with ${lost} rows that could not be written (${problem ?? 'write failed'}); everything recorded before is intact`,
-        });
-      }
+      if (ops.length === 0) return { unwritten: 0, spill: null };
+      // Never dropped silently: what could not be written goes to a spill file the next open imports.
+      const reason = problem ?? 'write failed';
+      const spill = writeSpill(dbPath, { ops, totals, lastRx }, reason);
+      const result: RecorderCloseResult = {
+        unwritten: ops.length,
+        reason,
+        spill: spill.path,
+        ...(spill.path === null ? { spillError: spill.error } : {}),
+      };
+      emitter.emit('problem', {
+        level: 'critical',
+        message:
+          spill.path !== null
+            ? `closing the recorder with ${ops.length} rows that could not be written (${reason}); they were saved to ${spill.path} and the next open of ${dbPath} imports them`
+            : `closing the recorder with ${ops.length} rows that could not be written (${reason}) nor saved to a spill file (${spill.error}); they are lost`,
+      });
+      return result;
     },
   }) as unknown as Recorder;
 

@@ -93,6 +93,19 @@ export interface RecorderEvents {
 export interface Recorder extends RunReader {
   readonly dbPath: string;
   /**
+   * The station's latest run when a crash left it (closed as `interrupted` at open) with the
+   * same profile, its last line no more than `withinS` before `atRxS`; else null. Whether the
+   * same pack is still on charge is the caller's call (the station manager checks continuity).
+   */
+  resumableRun(
+    stationId: string,
+    profileJson: unknown,
+    atRxS: number,
+    withinS: number,
+  ): { runId: number; lastRxS: number } | null;
+  /** Continue an interrupted run found by resumableRun: it is open again, written by this process. */
+  resumeRun(runId: number): { runId: number; resumed: true; lastRxS: number | null };
+  /**
    * Start a run. When `resumeWithinS` is set and the same station's latest run was closed
    * as `interrupted` (a crash) no longer than that before `startRxS`, with the same profile,
    * that run is reopened and continued instead.
@@ -116,6 +129,28 @@ export interface Recorder extends RunReader {
   health(): RecorderHealth;
   on<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
   off<K extends keyof RecorderEvents>(event: K, listener: (...args: RecorderEvents[K]) => void): this;
-  /** Flush, checkpoint the WAL and close the file. */
-  close(): void;
+  /** Spill files of earlier closes imported (or not: `error`) when this recorder opened. */
+  readonly importedSpills: SpillImport[];
+  /**
+   * Flush, checkpoint the WAL and close the file. Rows that still cannot be written are saved
+   * to a spill file (NDJSON next to the database, else in the temporary folder) that the next
+   * open imports; the result says how many and where.
+   */
+  close(): RecorderCloseResult;
+}
+
+export interface SpillImport {
+  path: string;
+  rows: number;
+  error?: string;
+}
+
+export interface RecorderCloseResult {
+  /** Rows (lines, samples, events, run starts and ends) not in the database at close. */
+  unwritten: number;
+  /** Why they could not be written. */
+  reason?: string;
+  /** Where they were saved; null when nothing was left or the spill could not be written. */
+  spill: string | null;
+  spillError?: string;
 }

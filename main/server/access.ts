@@ -1,10 +1,11 @@
 /**
- * Who may talk to `taperline serve`. A loopback bind is reachable only from this machine, so
- * it checks only that the Host header names a loopback address (a page on another site that
- * resolves its own name to 127.0.0.1 is refused). Any other bind is reachable from the
- * network and requires the session token on every request: in the query (`?token=`) of the
- * first page load, then in a same-site cookie the server sets, which the page's scripts,
- * styles and WebSocket send back on their own.
+ * Who may talk to `taperline serve`. Every request needs the session token, loopback
+ * included (any local program, or a page another site rebinds to 127.0.0.1, could otherwise
+ * add stations, write to ports and delete runs): in the query (`?token=`) of the first page
+ * load, then in a same-site cookie the server sets, which the page's scripts, styles and
+ * WebSocket send back on their own. A loopback bind also answers only to a Host header that
+ * is, strictly parsed, a loopback name. The Electron shell talks over its child-process IPC
+ * channel, not HTTP, and needs no token.
  */
 import { randomBytes, timingSafeEqual } from 'node:crypto';
 import type { IncomingMessage } from 'node:http';
@@ -24,35 +25,35 @@ export function isLoopbackHost(host: string): boolean {
   return isIP(bare) === 4 && bare.startsWith('127.');
 }
 
-/** The host name part of a Host header (`127.0.0.1:8080`, `[::1]:8080`, `localhost`). */
-export function hostnameOf(hostHeader: string): string {
-  if (hostHeader.startsWith('[')) {
-    const end = hostHeader.indexOf(']');
-    return end > 0 ? hostHeader.slice(0, end + 1) : hostHeader;
-  }
-  const colon = hostHeader.lastIndexOf(':');
-  return colon >= 0 ? hostHeader.slice(0, colon) : hostHeader;
+/**
+ * The host name of a Host header, parsed strictly: `name[:port]` or `[ipv6][:port]` and
+ * nothing else (RFC 9110 section 7.2: uri-host [ ":" port ]). Anything else (userinfo, a path,
+ * `127.0.0.1:47200@evil.example`) is null, and refused.
+ */
+export function hostnameOf(hostHeader: string): string | null {
+  const m = /^(?:\[([0-9A-Fa-f:.]+)\]|([A-Za-z0-9.-]+))(?::(\d{1,5}))?$/.exec(hostHeader);
+  if (!m) return null;
+  if (m[3] !== undefined && Number(m[3]) > 65535) return null;
+  return m[1] !== undefined ? `[${m[1]}]` : m[2];
 }
 
 export type AccessDecision =
   { ok: true; tokenFromQuery: boolean } | { ok: false; status: 400 | 403; reason: string };
 
 export interface AccessPolicy {
-  /** null = no token required (loopback bind without one). */
-  token: string | null;
+  /** Required on every request, loopback included (query once, then the cookie). */
+  token: string;
   check(req: IncomingMessage, url: URL): AccessDecision;
   /** Extra checks of a WebSocket upgrade: the Origin must be this server's own. */
   checkUpgrade(req: IncomingMessage, url: URL): AccessDecision;
 }
 
-export function createAccessPolicy(bindHost: string, token: string | null): AccessPolicy {
+export function createAccessPolicy(bindHost: string, token: string): AccessPolicy {
   const loopbackOnly = isLoopbackHost(bindHost);
-  if (!loopbackOnly && !token) {
-    throw new Error(`binding ${bindHost} makes Taperline reachable from the network, which needs a token`);
-  }
-  const expected = token ? Buffer.from(token) : null;
+  if (!token) throw new Error('the server needs an access token');
+  const expected = Buffer.from(token);
   const matches = (candidate: string | undefined): boolean => {
-    if (!expected || candidate === undefined) return false;
+    if (candidate === undefined) return false;
     const given = Buffer.from(candidate);
     return given.length === expected.length && timingSafeEqual(given, expected);
   };
@@ -60,21 +61,25 @@ export function createAccessPolicy(bindHost: string, token: string | null): Acce
   const check = (req: IncomingMessage, url: URL): AccessDecision => {
     const host = req.headers.host;
     if (!host) return { ok: false, status: 400, reason: 'the request has no Host header' };
-    if (loopbackOnly && !isLoopbackHost(hostnameOf(host))) {
+    const name = hostnameOf(host);
+    // The Host is never echoed: a refusal page must not carry what a hostile page chose.
+    if (name === null)
+      return { ok: false, status: 400, reason: 'the Host header is not a host name and port' };
+    if (loopbackOnly && !isLoopbackHost(name)) {
       return {
         ok: false,
         status: 403,
-        reason: `this server answers only to a loopback address, not to "${host}"`,
+        reason: 'this server answers only to a loopback address (127.0.0.1, ::1, localhost)',
       };
     }
-    if (!expected) return { ok: true, tokenFromQuery: false };
+    // The token is required on loopback too: any local program could otherwise drive the API.
     if (matches(url.searchParams.get(TOKEN_QUERY) ?? undefined)) return { ok: true, tokenFromQuery: true };
     if (matches(readCookie(req.headers.cookie, TOKEN_COOKIE))) return { ok: true, tokenFromQuery: false };
     return {
       ok: false,
       status: 403,
       reason:
-        'this server needs its access token: open the address that `taperline serve` printed, with ?token=',
+        'this server needs its access token: open the address that `taperline serve` printed (it ends in ?token=…)',
     };
   };
 
@@ -87,7 +92,7 @@ export function createAccessPolicy(bindHost: string, token: string | null): Acce
       const origin = req.headers.origin;
       // Browsers always send Origin on a WebSocket upgrade; tools and tests may not.
       if (origin !== undefined && origin !== `http://${req.headers.host}`) {
-        return { ok: false, status: 403, reason: `WebSocket from another site (${origin}) refused` };
+        return { ok: false, status: 403, reason: 'a WebSocket from another site is refused' };
       }
       return decision;
     },

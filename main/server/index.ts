@@ -17,7 +17,7 @@ import type { AppService } from '../app/service';
 import {
   createAccessPolicy,
   generateToken,
-  isLoopbackHost,
+  hostnameOf,
   tokenCookie,
   TOKEN_QUERY,
   type AccessPolicy,
@@ -35,7 +35,7 @@ export interface ServerOptions {
   /** 0 = any free port. */
   port: number;
   service: AppService;
-  /** Required for a non-loopback host; generated when missing there. */
+  /** The session token every request needs (loopback included); else TAPERLINE_TOKEN, else generated. */
   token?: string;
   /** The built renderer (index.html, app.js, styles.css); default dist/renderer. */
   rendererDir?: string;
@@ -49,9 +49,9 @@ export interface ServerOptions {
 export interface RunningServer {
   host: string;
   port: number;
-  /** The address to open, with `?token=` when one is required. */
+  /** The address to open from this machine, with `?token=` (a wildcard bind is shown as loopback). */
   url: string;
-  token: string | null;
+  token: string;
   clientCount(): number;
   close(): Promise<void>;
 }
@@ -64,7 +64,7 @@ export function defaultRendererDir(): string {
 
 export async function startServer(options: ServerOptions): Promise<RunningServer> {
   const host = options.host ?? '127.0.0.1';
-  const token = options.token ?? (isLoopbackHost(host) ? null : generateToken());
+  const token = options.token ?? tokenFromEnvironment() ?? generateToken();
   const access = createAccessPolicy(host, token);
   const rendererDir = options.rendererDir ?? defaultRendererDir();
   const { service } = options;
@@ -94,8 +94,14 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
     socket.on('error', () => socket.destroy());
     const url = requestUrl(req);
     const refuse = (status: number, reason: string) => {
+      const headers = Object.entries({
+        ...securityHeaders(null),
+        'Content-Type': 'text/plain; charset=utf-8',
+      })
+        .map(([name, value]) => `${name}: ${value}\r\n`)
+        .join('');
       socket.end(
-        `HTTP/1.1 ${status} ${status === 404 ? 'Not Found' : 'Forbidden'}\r\nContent-Type: text/plain\r\nConnection: close\r\n\r\n${reason}\n`,
+        `HTTP/1.1 ${status} ${STATUS_TEXT[status] ?? 'Forbidden'}\r\n${headers}Connection: close\r\n\r\n${reason}\n`,
       );
     };
     if (!url || url.pathname !== WS_PATH) return refuse(404, `no WebSocket here; the API is at ${WS_PATH}`);
@@ -137,8 +143,7 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
     });
   });
   const port = (server.address() as AddressInfo).port;
-  const urlHost = host.includes(':') ? `[${host}]` : host;
-  const url = `http://${urlHost}:${port}/${token ? `?${TOKEN_QUERY}=${token}` : ''}`;
+  const url = `http://${addressHost(host)}:${port}/?${TOKEN_QUERY}=${token}`;
 
   return {
     host,
@@ -170,9 +175,13 @@ async function handleHttp(req: IncomingMessage, res: ServerResponse, ctx: HttpCo
   const url = requestUrl(req);
   if (!url) return sendText(res, 400, 'bad request');
   const decision = ctx.access.check(req, url);
-  if (!decision.ok) return sendText(res, decision.status, decision.reason);
-  if (decision.tokenFromQuery && ctx.access.token) res.setHeader('Set-Cookie', tokenCookie(ctx.access.token));
-  setSecurityHeaders(res, req.headers.host ?? '');
+  // Refusals carry the same security headers as pages (and a policy that names no host).
+  if (!decision.ok) {
+    setSecurityHeaders(res, null);
+    return sendText(res, decision.status, decision.reason);
+  }
+  if (decision.tokenFromQuery) res.setHeader('Set-Cookie', tokenCookie(ctx.access.token));
+  setSecurityHeaders(res, req.headers.host ?? null);
   if (req.method !== 'GET' && req.method !== 'HEAD') {
     res.setHeader('Allow', 'GET, HEAD');
     return sendText(res, 405, 'only GET and HEAD are served; the API is on the WebSocket');
@@ -254,13 +263,36 @@ async function serveRunDownload(
   res.end(html);
 }
 
-function setSecurityHeaders(res: ServerResponse, hostHeader: string): void {
-  // Only a plain host:port goes into the policy, so no header can smuggle in a directive.
-  const wsHost = /^[A-Za-z0-9.-]+(:\d{1,5})?$|^\[[0-9A-Fa-f:.]+\](:\d{1,5})?$/.test(hostHeader)
-    ? hostHeader
-    : null;
-  res.setHeader('Content-Security-Policy', contentSecurityPolicy(wsHost));
-  for (const [name, value] of Object.entries(SECURITY_HEADERS)) res.setHeader(name, value);
+/**
+ * A token fixed by the person (TAPERLINE_TOKEN), so pages stay allowed across a restart of the
+ * server; at least 16 URL-safe characters, or it is refused.
+ */
+function tokenFromEnvironment(): string | null {
+  const fixed = process.env.TAPERLINE_TOKEN;
+  if (fixed === undefined || fixed === '') return null;
+  if (!/^[A-Za-z0-9_-]{16,}$/.test(fixed))
+    throw new Error('TAPERLINE_TOKEN must be at least 16 characters from A-Z a-z 0-9 _ -');
+  return fixed;
+}
+
+/** The CSP and the fixed security headers; the CSP names the page's own host for its WebSocket. */
+function securityHeaders(hostHeader: string | null): Record<string, string> {
+  // Only a strictly parsed host:port goes into the policy, so no header can smuggle in a directive.
+  const wsHost = hostHeader !== null && hostnameOf(hostHeader) !== null ? hostHeader : null;
+  return { 'Content-Security-Policy': contentSecurityPolicy(wsHost), ...SECURITY_HEADERS };
+}
+
+function setSecurityHeaders(res: ServerResponse, hostHeader: string | null): void {
+  for (const [name, value] of Object.entries(securityHeaders(hostHeader))) res.setHeader(name, value);
+}
+
+const STATUS_TEXT: Record<number, string> = { 400: 'Bad Request', 403: 'Forbidden', 404: 'Not Found' };
+
+/** The host part of the printed address: one that works from this machine (a wildcard bind is loopback). */
+export function addressHost(bindHost: string): string {
+  if (bindHost === '0.0.0.0' || bindHost === '') return '127.0.0.1';
+  if (bindHost === '::' || bindHost === '[::]') return '[::1]';
+  return bindHost.includes(':') && !bindHost.startsWith('[') ? `[${bindHost}]` : bindHost;
 }
 
 function requestUrl(req: IncomingMessage): URL | null {

@@ -7,13 +7,16 @@ import { EventEmitter } from 'node:events';
 import { parseProfile } from '@shared/chemistry/profile';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { createPipeline, type Pipeline } from '@shared/engine/pipeline';
-import { ProfileAssumer, assumedProfileJson } from '@shared/engine/assumed-profile';
-import type { EngineEvent } from '@shared/engine/types';
+import { createLineParser, type LineParser } from '@shared/telemetry/parse-line';
+import type { Sample } from '@shared/telemetry/types';
+import { MAX_ASSUME_LINES, ProfileAssumer, assumedProfileJson } from '@shared/engine/assumed-profile';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { Recorder, RunEndReason } from '../recorder/types';
 import type { RemoteStations } from '../sources';
 import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';
 import { toFeedLine } from './feed-line';
+import { resumeVerdict } from './resume-check';
 import { defaultMakeSource } from './sources';
 import { runChecks } from '@shared/engine/checks';
 import {
@@ -70,6 +73,8 @@ interface Station {
   records: boolean;
   /** No profile given: lines wait here until the first pack voltage shows the cell count. */
   assume: ProfileAssumer | null;
+  /** A crash left this station's run open: lines wait here until a sample shows whether to continue it. */
+  resume: { runId: number; lastRxS: number; probe: LineParser; pending: SourceLine[] } | null;
 }
 
 function resolve(stationId: string, profileJson: unknown): ResolvedProfile {
@@ -139,7 +144,8 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
             ok: false,
             problem: st.records
               ? 'not recording: no database is open'
-              : 'not recorded (a replay of a recorded run)',
+              : // Worded "not recording: …" like the no-database case: a deliberate choice, not a failure.
+                'not recording: a replay of a recorded run is not recorded again',
           },
       board: { ...st.board },
     };
@@ -150,35 +156,118 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     const recorder = recorderOf(st);
     if (!recorder) return;
     try {
-      const started = recorder.startRun(
-        {
-          stationId: st.id,
-          stationLabel: st.label,
-          profileName: st.profile.name,
-          chemistry: st.profile.chemistry,
-          profileJson: st.profileJson,
-          startRxS: now(),
-        },
-        { resumeWithinS },
+      const found = recorder.resumableRun(st.id, st.profileJson, now(), resumeWithinS);
+      if (found) {
+        // Decided on the first sample: only the same pack still on charge continues the run.
+        const probe = createLineParser({ fields: st.profile.fields, thermistor: st.profile.thermistor });
+        st.resume = { ...found, probe, pending: [] };
+        return;
+      }
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: could not look for a run to continue: ${err instanceof Error ? err.message : String(err)}; a new run starts`,
+        'warn',
       );
+    }
+    startNewRun(st);
+  }
+
+  function startNewRun(st: Station): void {
+    const recorder = recorderOf(st);
+    if (!recorder) return;
+    try {
+      const started = recorder.startRun({
+        stationId: st.id,
+        stationLabel: st.label,
+        profileName: st.profile.name,
+        chemistry: st.profile.chemistry,
+        profileJson: st.profileJson,
+        startRxS: now(),
+      });
       st.runId = started.runId;
       if (st.board !== NO_BOARD) recorder.setRunInfo(started.runId, { ...st.board });
-      if (started.resumed) {
-        // Rebuild the run's state from its own lines, then mark the time the recorder was away.
-        for (const line of recorder.lineIterator(started.runId))
-          st.pipeline.pushLine(line.text, line.rxS, line.tooLong === true);
-        const s = st.pipeline.summary();
-        st.lines = s.lines;
-        st.rejected = s.rejected;
-        if (started.lastRxS !== null)
-          openGap(st, started.lastRxS, 'the recorder was not running (crash or restart)');
-      }
     } catch (err) {
       problem(
         st.id,
         `${st.label}: could not start a run in the database: ${err instanceof Error ? err.message : String(err)}; the live display continues`,
         'critical',
       );
+    }
+  }
+
+  /** Hold a line while the interrupted run waits for its verdict; decide on the first pack voltage. */
+  function resumeFrom(st: Station, resume: NonNullable<Station['resume']>, line: SourceLine): void {
+    resume.pending.push(line);
+    const probe = resume.probe.parse(line.text, line.rxS, line.tooLong);
+    const first = probe.kind === 'sample' && probe.sample.vbatV !== undefined ? probe.sample : null;
+    if (first === null && resume.pending.length < MAX_ASSUME_LINES) return;
+    st.resume = null;
+    decideResume(st, resume, first, line.rxS);
+    for (const held of resume.pending) onLine(st, held);
+  }
+
+  function decideResume(
+    st: Station,
+    resume: NonNullable<Station['resume']>,
+    first: Sample | null,
+    atRxS: number,
+  ): void {
+    const recorder = recorderOf(st);
+    if (!recorder) return;
+    try {
+      // The run's state, rebuilt from its own recorded lines.
+      const rebuilt = createPipeline(st.profile);
+      const samples: TimedSample[] = [];
+      for (const line of recorder.lineIterator(resume.runId)) {
+        const out = rebuilt.pushLine(line.text, line.rxS, line.tooLong === true);
+        if (out.sample) samples.push(out.sample);
+      }
+      const state = rebuilt.state();
+      const verdict = resumeVerdict({
+        profile: st.profile,
+        lastPhase: state.phase,
+        last: state.last,
+        first,
+        gapS: atRxS - resume.lastRxS,
+      });
+      if (!verdict.resume) {
+        problem(
+          st.id,
+          `${st.label}: run ${resume.runId}, left open when the recorder stopped, stays closed as interrupted: ${verdict.why}; a new run starts`,
+          'warn',
+        );
+        startNewRun(st);
+        return;
+      }
+      recorder.resumeRun(resume.runId);
+      st.runId = resume.runId;
+      if (st.board !== NO_BOARD) recorder.setRunInfo(resume.runId, { ...st.board });
+      st.pipeline = rebuilt;
+      const summary = rebuilt.summary();
+      st.lines = summary.lines;
+      st.rejected = summary.rejected;
+      // Views show the whole run: the part before the crash comes back as the run's history.
+      emitter.emit('restored', {
+        stationId: st.id,
+        runId: resume.runId,
+        samples,
+        events: recorder.events(resume.runId),
+      });
+      st.gap = null;
+      openGap(
+        st,
+        resume.lastRxS,
+        `the recorder was not running (crash or restart); run continued: ${verdict.why}`,
+      );
+      problem(st.id, `${st.label}: run ${resume.runId} continues: ${verdict.why}`, 'warn');
+    } catch (err) {
+      problem(
+        st.id,
+        `${st.label}: could not continue run ${resume.runId}: ${err instanceof Error ? err.message : String(err)}; a new run starts`,
+        'warn',
+      );
+      if (st.runId === null) startNewRun(st);
     }
   }
 
@@ -250,6 +339,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
 
   function onLine(st: Station, line: SourceLine): void {
     if (st.assume) return assumeFrom(st, st.assume, line);
+    if (st.resume) return resumeFrom(st, st.resume, line);
     if (st.gap) closeGap(st, line.rxS);
     if (line.text.startsWith('#')) {
       const fromFirmware = boardFromFirmware(line.text);
@@ -394,6 +484,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         board: NO_BOARD,
         records: config.record !== false,
         assume: assumed ? new ProfileAssumer() : null,
+        resume: null,
       };
       stations.set(st.id, st);
       if (!assumed) startRun(st);
@@ -462,6 +553,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       st.lines = 0;
       st.rejected = 0;
       st.assume = null;
+      st.resume = null;
       // The new run has no time axis yet: a port still lost is a gap of the new run only once it has samples.
       st.gap = null;
       startRun(st);

@@ -24,6 +24,11 @@ export interface StationManagerEvents {
   sample: [{ stationId: string; sample: TimedSample }];
   event: [{ stationId: string; event: EngineEvent }];
   line: [{ stationId: string; line: FeedLine }];
+  /**
+   * A run left open by a crash is continued: its samples and events so far (the views show
+   * the whole run). Emitted once, before any new sample of the station.
+   */
+  restored: [{ stationId: string; runId: number; samples: TimedSample[]; events: EngineEvent[] }];
   source: [{ stationId: string; status: SourceStatus }];
   /** A problem a person should read (recording failed, port vanished...). */
   problem: [{ stationId: string | null; message: string; level: 'warn' | 'critical' }];

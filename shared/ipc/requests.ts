@@ -119,7 +119,8 @@ export const requestEnvelopeSchema = z
   .object({
     id: z.number().int().nonnegative(),
     method: z.string().max(64),
-    params: z.unknown(),
+    // Methods without parameters may leave them out; absent is read as {}.
+    params: z.unknown().optional(),
   })
   .strict();
 

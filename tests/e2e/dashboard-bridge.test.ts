@@ -15,7 +15,8 @@ import { firstStationId } from './helpers/page';
 test('the dashboard over the preload bridge', { timeout: 180_000 }, async (t) => {
   const serve: ServeHandle = await startServe(['--simulate', 'bench-liion-3s', '--speedup', '60']);
   let browser: BrowserSession | null = null;
-  const socket = new WebSocket(`ws://${new URL(serve.url).host}${WS_PATH}`);
+  // The API needs the token on loopback too: the printed address carries it.
+  const socket = new WebSocket(`ws://${new URL(serve.url).host}${WS_PATH}${new URL(serve.url).search}`);
   t.after(async () => {
     socket.close();
     await browser?.close();

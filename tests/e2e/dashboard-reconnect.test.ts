@@ -31,6 +31,7 @@ test('the page reconnects after the backend restarts', { timeout: 180_000 }, asy
   await page.locator('#view-bench .rec-state', { hasText: 'Recording run 1' }).waitFor({ timeout: 15_000 });
 
   const port = Number(new URL(serve.url).port);
+  const firstUrl = serve.url;
   await serve.stop();
   await page.waitForFunction(
     () => /unreachable|Connecting/.test(document.querySelector('#link-state')?.textContent ?? ''),
@@ -38,7 +39,9 @@ test('the page reconnects after the backend restarts', { timeout: 180_000 }, asy
     { timeout: 15_000 },
   );
 
-  serve = await startServe(args, { port, dir, keepDir: true });
+  // The same token: the open page's cookie must stay valid across the restart.
+  const token = new URL(firstUrl).searchParams.get('token') ?? undefined;
+  serve = await startServe(args, { port, dir, keepDir: true, token });
   await page.waitForFunction(
     () => /Connected/.test(document.querySelector('#link-state')?.textContent ?? ''),
     undefined,

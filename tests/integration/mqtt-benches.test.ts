@@ -61,7 +61,7 @@ test('two benches publish, one serve shows and records all their stations, and a
   procs.push(central.proc);
   await until(() => /serving at (http:\S+)/.test(central.out()), 20_000, 'serve to start');
   const httpUrl = /serving at (http:\S+)/.exec(central.out())![1]!;
-  client = await ApiClient.connect(`${httpUrl.replace(/^http/, 'ws').replace(/\/$/, '')}/api/ws`);
+  client = await ApiClient.connect(`ws://${new URL(httpUrl).host}/api/ws${new URL(httpUrl).search}`);
 
   // 10 samples a second per station (1 s simulated interval at 10x).
   const bench = (name: string, scenarios: string[]) =>

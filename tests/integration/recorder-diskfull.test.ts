@@ -7,7 +7,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { execFileSync, spawn } from 'node:child_process';
-import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
@@ -190,3 +190,95 @@ test('a file-size limit (RLIMIT_FSIZE) in a child process: critical problem with
     rmSync(dir, { recursive: true, force: true });
   }
 });
+
+test(
+  'Ctrl-C on `taperline record` while the disk is full: the count on stderr, the rows in a spill file, exit 1; the next open imports them and closes the run',
+  { skip: !mountable && 'mounting a tmpfs needs root here' },
+  async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'taperline-fullstop-'));
+    const mnt = join(dir, 'mnt');
+    mkdirSync(mnt);
+    const pair = ptyPair(join(dir, 'dev'), join(dir, 'host'));
+    assert.ok(tryMount(mnt, 'size=1m'));
+    const profilePath = join(dir, 'weather.json');
+    writeFileSync(profilePath, JSON.stringify({ name: 'weather station 3S', chemistry: 'li-ion', cells: 3 }));
+    const dbPath = join(mnt, 'runs.sqlite');
+    let spill: string | null = null;
+    try {
+      await pair.start();
+      const child = spawn(
+        process.execPath,
+        [
+          '--import',
+          'tsx',
+          join(repo, 'main', 'cli', 'main.ts'),
+          'record',
+          '--port',
+          pair.host,
+          '--db',
+          dbPath,
+          '--profile',
+          profilePath,
+          '--status-every',
+          '0.2',
+        ],
+        { cwd: repo, stdio: ['ignore', 'pipe', 'pipe'] },
+      );
+      let out = '';
+      let err = '';
+      child.stdout.on('data', (d: Buffer) => (out += d.toString()));
+      child.stderr.on('data', (d: Buffer) => (err += d.toString()));
+      const exited = new Promise<number | null>((res) => child.on('exit', (c) => res(c)));
+      await until(
+        () => /open at 115200 baud/.test(out),
+        30_000,
+        `the recorder to open the port: ${out}${err}`,
+      );
+      // Fill the disk once the database exists: about 256 KiB stay free for it.
+      writeFileSync(join(mnt, 'filler'), Buffer.alloc(700 * 1024));
+      const device = await openDevice(pair.device);
+      let i = 0;
+      while (!/CRITICAL: recording stopped/.test(out) && i < 5000) {
+        await write(device, `${line(i++)}\n`);
+        if (i % 20 === 0) await new Promise((r) => setTimeout(r, 30));
+      }
+      assert.match(out, /CRITICAL: recording stopped/);
+      for (let k = 0; k < 30; k++) await write(device, `${line(i++)}\n`);
+      const sent = i;
+      await until(() => out.includes(`| ${sent} lines |`), 10_000, `all ${sent} lines received`);
+      await new Promise<void>((r) => device.close(() => r()));
+      child.kill('SIGINT');
+      const code = await exited;
+      assert.equal(code, 1, `${out}\n${err}`);
+      const said =
+        /taperline: (\d+) rows could not be written to .* They were saved to (\S+\.ndjson); the next/.exec(
+          err,
+        );
+      assert.ok(said, err);
+      spill = said[2];
+      assert.ok(Number(said[1]) > 0);
+      assert.ok(existsSync(spill));
+      assert.doesNotMatch(out, /closed as stopped/);
+      assert.match(out, /run 1 stopped, not all of it in the database/);
+
+      // Space again: the next open imports the spill, deletes it, and the run is whole and closed.
+      rmSync(join(mnt, 'filler'));
+      const rec = openRecorder(dbPath);
+      assert.deepEqual(rec.importedSpills, [{ path: spill, rows: Number(said[1]) }]);
+      assert.equal(existsSync(spill), false);
+      const run = rec.getRun(1);
+      assert.equal(run?.endReason, 'stopped');
+      assert.equal(run?.lines, sent);
+      const db = new Database(dbPath, { readonly: true });
+      assert.equal((db.prepare('SELECT count(*) AS n FROM lines').get() as { n: number }).n, sent);
+      assert.equal((db.prepare('SELECT count(*) AS n FROM samples').get() as { n: number }).n, sent);
+      db.close();
+      rec.close();
+    } finally {
+      if (spill) rmSync(spill, { force: true });
+      await pair.stop();
+      umount(mnt);
+      rmSync(dir, { recursive: true, force: true });
+    }
+  },
+);

@@ -88,7 +88,8 @@ test(
     process.on('unhandledRejection', onUnhandled);
     try {
       const runId = recordRun(recorder);
-      const url = `http://127.0.0.1:${server.port}/api/runs/${runId}/export.csv`;
+      // Every request needs the access token, loopback included.
+      const url = `http://127.0.0.1:${server.port}/api/runs/${runId}/export.csv?token=${server.token}`;
 
       // A browser that takes the first bytes, stops reading (the server backs up on the full
       // socket) and then cancels the download.

@@ -39,7 +39,7 @@ function serve(args: string[]) {
 }
 
 async function stations(url: string): Promise<{ client: ApiClient; list: StationSnapshot[] }> {
-  const client = await ApiClient.connect(`${url.replace(/^http/, 'ws').replace(/\/$/, '')}/api/ws`);
+  const client = await ApiClient.connect(`ws://${new URL(url).host}/api/ws${new URL(url).search}`);
   const reply = await client.request('stations.list');
   assert.ok(reply.ok, JSON.stringify(reply));
   return { client, list: (reply as { result: StationSnapshot[] }).result };

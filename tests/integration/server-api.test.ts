@@ -14,6 +14,7 @@ import {
   startHarness,
   TRAIL_CAMERA_PROFILE,
   wsUrl,
+  authed,
   type Harness,
   type PtyPair,
 } from './server-harness';
@@ -159,22 +160,71 @@ test('station snapshots are throttled to MAX_PUSHES_PER_SECOND per station', asy
   );
 });
 
-test('an alarm ack reaches every client and is held by the service', async () => {
-  const ack = await a.request('stations.ackAlarm', { stationId: 'trail-cam', code: 'overtemp', t: 12 });
-  assert.deepEqual(ack, {
-    id: ack.id,
-    ok: true,
-    result: { stationId: 'trail-cam', code: 'overtemp', t: 12 },
-  });
+test('an alarm ack reaches every client and is held by the service; only a raised alarm can be acked', async () => {
+  // A bogus ack is refused: acks travel with every station push, so they must be bounded by real alarms.
+  const bogus = await a.request('stations.ackAlarm', { stationId: 'trail-cam', code: 'overtemp', t: 12 });
+  assert.equal(bogus.ok, false);
+  assert.match(!bogus.ok ? bogus.error : '', /raised no alarm "overtemp" at t=12: nothing to acknowledge/);
+  // Invented hot pack: 62 °C is above the Li-ion charge window's 45 °C upper limit (the profile default).
+  for (let i = 220; i < 235; i++)
+    pty.write(`t=${i} vbat=7.4 ibat=0.5 temp=62.0 vin=12.0 iin=0.35 chg=1 flt=0\n`);
+  const raised = (
+    await a.waitForPush(
+      (p) => p.push === 'event' && (p.data as { event: { type: string } }).event.type === 'alarm',
+      10_000,
+    )
+  ).data as { event: { code: string; t: number } };
+  const { code, t } = raised.event;
+  const ack = await a.request('stations.ackAlarm', { stationId: 'trail-cam', code, t });
+  assert.deepEqual(ack, { id: ack.id, ok: true, result: { stationId: 'trail-cam', code, t } });
   const seen = await b.waitForPush((p) => p.push === 'alarm-ack');
-  assert.deepEqual(seen.data, { stationId: 'trail-cam', code: 'overtemp', t: 12 });
+  assert.deepEqual(seen.data, { stationId: 'trail-cam', code, t });
   const late = await ApiClient.connect(wsUrl(h.server));
   const list = await late.request('stations.list');
   const station = (list as { result: { id: string; acks: unknown[] }[] }).result.find(
     (s) => s.id === 'trail-cam',
   );
-  assert.deepEqual(station?.acks, [{ stationId: 'trail-cam', code: 'overtemp', t: 12 }]);
+  assert.deepEqual(station?.acks, [{ stationId: 'trail-cam', code, t }]);
   await late.close();
+});
+
+test('a request may leave out params when the method takes none', async () => {
+  const reply = await a.sendRaw(JSON.stringify({ id: 77, method: 'stations.list' }), 77);
+  assert.equal(reply.ok, true);
+});
+
+test('loopback needs the token too; Host is parsed strictly; refusals carry the security headers and echo nothing', async () => {
+  const page = await rawGet(h.server.port, '/', authed(h.server));
+  assert.equal(page.status, 200);
+  const noToken = await rawGet(h.server.port, '/');
+  assert.equal(noToken.status, 403);
+  assert.match(noToken.body, /access token/);
+  await assert.rejects(ApiClient.connect(wsUrl(h.server, '')), /HTTP 403/);
+  // Userinfo-style trick: not a host name and port (RFC 9110 section 7.2), so not loopback.
+  const tricked = await rawGet(h.server.port, '/', {
+    ...authed(h.server),
+    Host: `127.0.0.1:${h.server.port}@evil.example`,
+  });
+  assert.equal(tricked.status, 400);
+  const foreign = await rawGet(h.server.port, '/', {
+    ...authed(h.server),
+    Host: `evil.example:${h.server.port}`,
+  });
+  assert.equal(foreign.status, 403);
+  for (const refused of [noToken, tricked, foreign]) {
+    assert.doesNotMatch(refused.body, /evil\.example/);
+    for (const name of [
+      'content-security-policy',
+      'x-content-type-options',
+      'referrer-policy',
+      'x-frame-options',
+      'cross-origin-opener-policy',
+      'cross-origin-resource-policy',
+    ])
+      assert.ok(refused.headers[name] !== undefined && page.headers[name] !== undefined, name);
+    assert.doesNotMatch(String(refused.headers['content-security-policy']), /evil/);
+  }
+  assert.equal(h.server.url, `http://127.0.0.1:${h.server.port}/?token=${h.server.token}`);
 });
 
 test('recorded runs can be listed, read and exported as CSV over HTTP', async () => {
@@ -188,17 +238,17 @@ test('recorded runs can be listed, read and exported as CSV over HTTP', async ()
   assert.ok((samples as { result: unknown[] }).result.length >= 5);
   const exported = await a.request('runs.exportCsv', { runId: run.id });
   assert.deepEqual((exported as { result: unknown }).result, { url: `/api/runs/${run.id}/export.csv` });
-  const csv = await rawGet(h.server.port, `/api/runs/${run.id}/export.csv`);
+  const csv = await rawGet(h.server.port, `/api/runs/${run.id}/export.csv`, authed(h.server));
   assert.equal(csv.status, 200);
   assert.match(String(csv.headers['content-type']), /text\/csv/);
   assert.ok(csv.body.split('\n').length > 20);
-  assert.equal((await rawGet(h.server.port, '/api/runs/99999/export.csv')).status, 404);
+  assert.equal((await rawGet(h.server.port, '/api/runs/99999/export.csv', authed(h.server))).status, 404);
   const del = await a.request('runs.delete', { runId: run.id });
   assert.match(!del.ok ? del.error : '', /still recording/);
 });
 
 test('the page is served with the strict CSP header', async () => {
-  const page = await rawGet(h.server.port, '/');
+  const page = await rawGet(h.server.port, '/', authed(h.server));
   assert.equal(page.status, 200);
   assert.match(page.body, /<title>Taperline<\/title>/);
   const csp = String(page.headers['content-security-policy']);
@@ -215,7 +265,7 @@ test('the page is served with the strict CSP header', async () => {
     assert.ok(csp.includes(directive), `CSP has ${directive}: ${csp}`);
   }
   assert.equal(page.headers['x-content-type-options'], 'nosniff');
-  const script = await rawGet(h.server.port, '/app.js');
+  const script = await rawGet(h.server.port, '/app.js', authed(h.server));
   assert.match(String(script.headers['content-type']), /text\/javascript/);
 });
 
@@ -229,16 +279,19 @@ test('paths that leave the renderer folder are refused', async () => {
     '/.hidden',
     '/x%00.js',
   ]) {
-    const res = await rawGet(h.server.port, path);
+    const res = await rawGet(h.server.port, path, authed(h.server));
     assert.ok(res.status === 403 || res.status === 400, `${path} -> ${res.status}`);
     assert.doesNotMatch(res.body, /outside the renderer folder/);
   }
-  assert.equal((await rawGet(h.server.port, '/nope.js')).status, 404);
+  assert.equal((await rawGet(h.server.port, '/nope.js', authed(h.server))).status, 404);
 });
 
 test('a loopback server refuses a foreign Host header and a cross-site WebSocket', async () => {
   // DNS rebinding: a page on another site whose name resolves to 127.0.0.1.
-  const rebound = await rawGet(h.server.port, '/', { Host: `attacker.example:${h.server.port}` });
+  const rebound = await rawGet(h.server.port, '/', {
+    ...authed(h.server),
+    Host: `attacker.example:${h.server.port}`,
+  });
   assert.equal(rebound.status, 403);
   await assert.rejects(ApiClient.connect(wsUrl(h.server), { origin: 'http://attacker.example' }), /HTTP 403/);
   const sameSite = await ApiClient.connect(wsUrl(h.server), { origin: `http://127.0.0.1:${h.server.port}` });

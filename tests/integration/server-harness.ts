@@ -151,8 +151,14 @@ export class ApiClient {
   }
 }
 
-export function wsUrl(server: RunningServer, query = ''): string {
+/** The API address; with the server's token unless a query is given ('' = none). */
+export function wsUrl(server: RunningServer, query = `?token=${server.token}`): string {
   return `ws://127.0.0.1:${server.port}${WS_PATH}${query}`;
+}
+
+/** The cookie a browser holds after opening the printed address: every request needs the token. */
+export function authed(server: { token: string }): Record<string, string> {
+  return { Cookie: `taperline_token=${server.token}` };
 }
 
 /** A virtual serial cable: the station opens `stationPath`, the test writes to `devicePath`. */

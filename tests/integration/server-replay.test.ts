@@ -19,7 +19,7 @@ import { startBackend, type Backend } from '../../main/app/backend';
 import { stationsFromOptions } from '../../main/app/station-options';
 import { startServer, type RunningServer } from '../../main/server';
 import { realLibraries } from '../../main/app/libraries';
-import { ApiClient, openPtyPair, rawGet, TRAIL_CAMERA_PROFILE, type PtyPair } from './server-harness';
+import { ApiClient, authed, openPtyPair, rawGet, TRAIL_CAMERA_PROFILE, type PtyPair } from './server-harness';
 
 let dir: string;
 let dbPath: string;
@@ -78,7 +78,7 @@ before(async () => {
     reportHtml: (id) => realLibraries.runReportHtml(backend.recorder!, id),
     reportPdf: (id) => realLibraries.runReportPdf(backend.recorder!, id),
   });
-  client = await ApiClient.connect(`ws://127.0.0.1:${server.port}/api/ws`);
+  client = await ApiClient.connect(`ws://127.0.0.1:${server.port}/api/ws?token=${server.token}`);
   await client.waitForPush(
     (p) => p.push === 'station' && (p.data as { source: { state: string } }).source.state === 'open',
   );
@@ -167,7 +167,7 @@ test('the live station and its recorded run get the same diagnosis of the fault'
 test('the Run report is offered as a download URL and served as HTML', async () => {
   const reply = await client.request('runs.report', { runId });
   assert.deepEqual((reply as { result: unknown }).result, { url: `/api/runs/${runId}/report.html` });
-  const page = await rawGet(server.port, `/api/runs/${runId}/report.html`);
+  const page = await rawGet(server.port, `/api/runs/${runId}/report.html`, authed(server));
   assert.equal(page.status, 200);
   assert.match(String(page.headers['content-type']), /text\/html/);
   assert.match(page.body, /<html/i);
@@ -181,7 +181,7 @@ test('the Run report is offered as a download URL and served as HTML', async () 
 test('the Run report PDF is printed by headless Chromium and served', { timeout: 60_000 }, async () => {
   const reply = await client.request('runs.report', { runId, pdf: true });
   assert.deepEqual((reply as { result: unknown }).result, { url: `/api/runs/${runId}/report.pdf` });
-  const pdf = await rawGet(server.port, `/api/runs/${runId}/report.pdf`);
+  const pdf = await rawGet(server.port, `/api/runs/${runId}/report.pdf`, authed(server));
   assert.equal(pdf.status, 200, pdf.body.slice(0, 200));
   assert.equal(pdf.headers['content-type'], 'application/pdf');
   // ISO 32000-1 section 7.5.2: a PDF file starts with the header %PDF-1.n.

@@ -59,10 +59,15 @@ test(
     ]);
     try {
       const line = await cli.firstLine;
-      assert.match(line, /^Taperline is serving at http:\/\/127\.0\.0\.1:\d+\/ \(1 station, recording to /);
-      const port = Number(/:(\d+)\//.exec(line)![1]);
-
-      const client = await ApiClient.connect(`ws://127.0.0.1:${port}/api/ws`);
+      assert.match(
+        line,
+        /^Taperline is serving at http:\/\/127\.0\.0\.1:\d+\/\?token=[A-Za-z0-9_-]{32} \(1 station, recording to /,
+      );
+      const [, portText, token] = /:(\d+)\/\?token=([A-Za-z0-9_-]+)/.exec(line)!;
+      const port = Number(portText);
+      // The token is required on loopback too.
+      await assert.rejects(ApiClient.connect(`ws://127.0.0.1:${port}/api/ws`), /HTTP 403/);
+      const client = await ApiClient.connect(`ws://127.0.0.1:${port}/api/ws?token=${token}`);
       const list = await client.request('stations.list');
       const stations = (list as { result: { id: string; runId: number | null }[] }).result;
       assert.equal(stations.length, 1);
@@ -74,7 +79,9 @@ test(
         'a 3S Li-ion pack stays within 6..13.5 V',
       );
       assert.equal(
-        (await rawGet(port, '/')).headers['content-security-policy']?.includes("script-src 'self'"),
+        (await rawGet(port, `/?token=${token}`)).headers['content-security-policy']?.includes(
+          "script-src 'self'",
+        ),
         true,
       );
       await client.close();
@@ -111,13 +118,14 @@ test(
 );
 
 test(
-  'serve --host 0.0.0.0 prints the token address and refuses requests without it',
+  'serve --host 0.0.0.0 prints a token address that works from this machine and refuses requests without it',
   { timeout: 60_000 },
   async () => {
     const cli = startCli(['serve', '--host', '0.0.0.0', '--port', '0', '--no-record']);
     try {
       const line = await cli.firstLine;
-      const match = /http:\/\/0\.0\.0\.0:(\d+)\/\?token=([A-Za-z0-9_-]+)/.exec(line);
+      // A wildcard bind is printed as loopback: http://0.0.0.0:… is not an address a browser can open everywhere.
+      const match = /http:\/\/127\.0\.0\.1:(\d+)\/\?token=([A-Za-z0-9_-]+)/.exec(line);
       assert.ok(match, line);
       const port = Number(match[1]);
       assert.equal((await rawGet(port, '/')).status, 403);

@@ -174,7 +174,17 @@ test('usage errors are one line on standard error with exit status 2', async () 
       ],
       [
         ['record', '--port', join(dir, 'p'), '--baud', 'fast'],
-        /^taperline: --baud must be a positive whole number/,
+        /^taperline: --baud must be a baud rate, a whole number from 1 to 12000000 \(e\.g\. 115200\) \(got "fast"\)$/m,
+      ],
+      // 1e10 is a whole number, but no serial port runs at 10 Gbaud.
+      [
+        ['record', '--port', join(dir, 'p'), '--baud', '1e10'],
+        /^taperline: --baud must be a baud rate, a whole number from 1 to 12000000 \(e\.g\. 115200\) \(got "1e10"\)$/m,
+      ],
+      // An empty path used to wait forever for a device that cannot appear.
+      [
+        ['record', '--port', ''],
+        /^taperline: --port needs a device path such as \/dev\/ttyUSB0 \(got an empty one\); nothing was recorded/,
       ],
       [
         ['record', '--port', join(dir, 'p'), '--profile', join(dir, 'missing.json')],

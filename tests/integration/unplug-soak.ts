@@ -13,7 +13,7 @@
  * the device is away, from /proc/<pid>/stat.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
 import { SerialPort } from 'serialport';
@@ -87,6 +87,9 @@ class Socat {
     const gone = new Promise<void>((r) => p.once('exit', () => r()));
     p.kill(signal);
     await gone;
+    // After SIGKILL socat's links stay behind. The recorder's (host) one is left dangling on
+    // purpose; the writer's own is removed so this side never opens a re-used pty number.
+    rmSync(this.device, { force: true });
   }
 }
 
@@ -190,16 +193,18 @@ export async function runUnplugSoak(options: SoakOptions): Promise<SoakResult> {
   }
 
   let seq = 0;
+  let writeError: Error | null;
   try {
     if (!(await waitFor(() => / open at /.test(out), 15_000)))
       throw new Error(`the recorder did not open the port: ${out}`);
     for (let cycle = 0; cycle <= cycles; cycle++) {
       // The device is back (cycle 0: first plug): open its end, write numbered lines.
       const writer = await openPort(socat.device);
+      writeError = null;
+      writer.on('error', (e: Error) => (writeError = e));
       if (cycle > 0) result.bareOpenMs.push(Date.now() - backAt);
       const firstSeq = seq + 1;
       const written: number[] = [];
-      let writeError: Error | null = null;
       const writeOne = () => {
         seq++;
         written.push(seq);

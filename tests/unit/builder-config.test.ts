@@ -124,3 +124,100 @@ test('every native module and what the Node backend child loads stays outside th
   // Native modules keep their Node build (the backend is a Node process): no rebuild for Electron.
   assert.equal(config.npmRebuild, false);
 });
+
+interface Fuses {
+  runAsNode: boolean;
+  enableCookieEncryption: boolean;
+  enableNodeOptionsEnvironmentVariable: boolean;
+  enableNodeCliInspectArguments: boolean;
+  enableEmbeddedAsarIntegrityValidation: boolean;
+  onlyLoadAppFromAsar: boolean;
+  grantFileProtocolExtraPrivileges: boolean;
+}
+const release = config as unknown as {
+  electronFuses: Fuses;
+  beforePack: string;
+  extraResources: Array<{ from: string; to: string }>;
+};
+
+test('release fuses: no run-as-node, cookies encrypted, no NODE_OPTIONS or --inspect, asar only and checked', () => {
+  // Fuse names and meanings: Electron's "Electron Fuses" tutorial and @electron/fuses (FuseV1Options).
+  assert.deepEqual(release.electronFuses, {
+    runAsNode: false,
+    enableCookieEncryption: true,
+    enableNodeOptionsEnvironmentVariable: false,
+    enableNodeCliInspectArguments: false,
+    enableEmbeddedAsarIntegrityValidation: true,
+    onlyLoadAppFromAsar: true,
+    grantFileProtocolExtraPrivileges: false,
+  });
+});
+
+test('the test build differs only in the --inspect fuse Playwright needs, and passes the schema', async () => {
+  const testConfig = yaml.load(readFileSync(join(root, 'build/electron-builder.test.yml'), 'utf8')) as {
+    extends: string;
+    directories: { output: string };
+    electronFuses: Fuses;
+  };
+  assert.equal(testConfig.extends, 'build/electron-builder.yml');
+  assert.notEqual(testConfig.directories.output, 'out');
+  assert.deepEqual(testConfig.electronFuses, {
+    ...release.electronFuses,
+    enableNodeCliInspectArguments: true,
+  });
+  const { extends: _base, ...own } = testConfig;
+  await validateConfiguration({ ...config, ...own }, { isEnabled: false, add: () => undefined });
+});
+
+test('the packaged backend runs the Node packed with the app on the unpacked CLI, never one from PATH', async () => {
+  const { backendRuntime } = await import('../../main/electron/backend-process');
+  const packaged = backendRuntime({
+    isPackaged: true,
+    resourcesPath: '/opt/Taperline/resources',
+    distDir: '/ignored',
+    platform: 'linux',
+    env: { TAPERLINE_NODE: '/tmp/evil-node' },
+  });
+  assert.deepEqual(packaged, {
+    nodePath: '/opt/Taperline/resources/node/bin/node',
+    cliPath: '/opt/Taperline/resources/app.asar.unpacked/dist/cli.cjs',
+  });
+  assert.equal(
+    backendRuntime({
+      isPackaged: true,
+      resourcesPath: 'C:\\T\\resources',
+      distDir: '',
+      platform: 'win32',
+    }).nodePath.endsWith('node.exe'),
+    true,
+  );
+  // The packed runtime is where the config puts it, and the CLI it runs is outside app.asar.
+  assert.deepEqual(release.extraResources, [{ from: 'build/node-runtime', to: 'node' }]);
+  assert.ok(config.asarUnpack.some((p) => covers(p, 'dist/cli.cjs')));
+  // From a checkout: TAPERLINE_NODE (set by bin/start.cjs), else node.
+  assert.deepEqual(backendRuntime({ isPackaged: false, resourcesPath: '', distDir: '/repo/dist', env: {} }), {
+    nodePath: 'node',
+    cliPath: '/repo/dist/cli.cjs',
+  });
+});
+
+test('the beforePack hook stages this Node (which loads the native modules) and refuses cross builds', async () => {
+  assert.equal(release.beforePack, 'build/stage-node.cjs');
+  const hook = requireHere(join(root, release.beforePack)) as {
+    default(context: { electronPlatformName: string; arch: string }): Promise<void>;
+  };
+  const other = process.platform === 'linux' ? 'win32' : 'linux';
+  await assert.rejects(hook.default({ electronPlatformName: other, arch: process.arch }), /no cross builds/);
+  const staged = join(root, 'build', 'node-runtime', process.platform === 'win32' ? 'node.exe' : 'bin/node');
+  try {
+    await hook.default({ electronPlatformName: process.platform, arch: process.arch });
+    const { execFileSync } = await import('node:child_process');
+    assert.equal(
+      execFileSync(staged, ['-p', 'process.version'], { encoding: 'utf8' }).trim(),
+      process.version,
+    );
+  } finally {
+    const { rmSync } = await import('node:fs');
+    rmSync(join(root, 'build', 'node-runtime'), { recursive: true, force: true });
+  }
+});

@@ -48,11 +48,13 @@ test(
       const lines = out.trim().split('\n');
       assert.match(lines[0], /^The Electron binary is missing .* headless mode/);
       assert.equal(lines.filter((l) => /Electron/.test(l)).length, 1);
-      const url = /Taperline is serving at (http:\/\/127\.0\.0\.1:\d+\/)/.exec(out)?.[1];
-      assert.ok(url, out);
+      // The printed address carries the access token every request needs, loopback included.
+      const m = /Taperline is serving at (http:\/\/127\.0\.0\.1:\d+\/)(\?token=[A-Za-z0-9_-]+)/.exec(out);
+      assert.ok(m, out);
+      const [, url, tokenQuery] = m;
       assert.match(out, /\(1 station, recording to .*taperline\.sqlite/);
 
-      const ws = new WebSocket(`${url.replace('http', 'ws')}api/ws`);
+      const ws = new WebSocket(`${url.replace('http', 'ws')}api/ws${tokenQuery}`);
       const reply = await new Promise<{ result: { id: string }[] }>((resolve, reject) => {
         ws.once('open', () => ws.send(JSON.stringify({ id: 1, method: 'stations.list', params: {} })));
         ws.on('message', (d) => {

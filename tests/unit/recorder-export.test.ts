@@ -177,3 +177,45 @@ test('allSamples returns every sample of a run longer than 100,000 samples, in o
     rmSync(dir, { recursive: true, force: true });
   }
 });
+
+test('CSV export: text cells a spreadsheet would run as formulas get a leading quote, numbers stay numbers', async () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-export-'));
+  const rec = openRecorder(join(dir, 'runs.sqlite'));
+  try {
+    const { runId } = rec.startRun(START);
+    // The starting characters OWASP's CSV Injection page lists: = + - @ tab, carriage return.
+    const hostile = {
+      link: '=HYPERLINK("http://evil.example","click")',
+      sum: '@SUM(1+1)*cmd',
+      plus: '+1+1',
+      minus: '-1+cmd',
+      tab: '\t=1',
+      cr: '\r=1',
+      plain: 'garden',
+      level: -3.5,
+      '=key': 'x',
+    };
+    rec.addSample(runId, { t: 0, rxS: START.startRxS, vbatV: -0.25, ibatA: 0.5, extra: hostile });
+    rec.endRun(runId, START.startRxS + 1, 'stopped');
+    const out = new PassThrough();
+    let text = '';
+    out.on('data', (d: Buffer) => (text += d.toString()));
+    await rec.exportCsv(runId, out);
+    const [header, row] = parse(text, { relax_column_count: true }) as string[][];
+    const cell = (name: string) => row[header.indexOf(name)];
+    assert.equal(cell('link'), `'=HYPERLINK("http://evil.example","click")`);
+    assert.equal(cell('sum'), `'@SUM(1+1)*cmd`);
+    assert.equal(cell('plus'), `'+1+1`);
+    assert.equal(cell('minus'), `'-1+cmd`);
+    assert.equal(cell('tab'), `'\t=1`);
+    assert.equal(cell('cr'), `'\r=1`);
+    assert.equal(cell('plain'), 'garden');
+    // Numbers, negative ones included, are written as numbers.
+    assert.equal(cell('level'), '-3.5');
+    assert.ok(header.includes(`'=key`));
+    assert.ok(row.includes('-0.25'));
+  } finally {
+    rec.close();
+    rmSync(dir, { recursive: true, force: true });
+  }
+});

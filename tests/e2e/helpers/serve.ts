@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
 export interface ServeHandle {
-  /** The address the server printed (may carry `?token=`). */
+  /** The address the server printed; it carries `?token=`, which every request needs. */
   url: string;
   /** The same address with `?bench=`/hash added by the caller; base without query. */
   origin: string;
@@ -28,6 +28,8 @@ export interface ServeOptions {
   dir?: string;
   /** Leave the folder in place on stop (for a restart that reuses it). */
   keepDir?: boolean;
+  /** Start with this access token (TAPERLINE_TOKEN), so a page kept open across a restart stays allowed. */
+  token?: string;
 }
 
 export async function startServe(extraArgs: string[], options: ServeOptions = {}): Promise<ServeHandle> {
@@ -46,7 +48,7 @@ export async function startServe(extraArgs: string[], options: ServeOptions = {}
   ];
   const child: ChildProcess = spawn(process.execPath, args, {
     stdio: ['ignore', 'pipe', 'pipe'],
-    env: { ...process.env },
+    env: { ...process.env, ...(options.token ? { TAPERLINE_TOKEN: options.token } : {}) },
   });
   let out = '';
   child.stdout!.on('data', (d) => (out += String(d)));
