@@ -14,7 +14,7 @@ import { saturationCurrentForVocA, type PanelParams } from './solar';
 import type { SupplyParams } from './supply';
 import type { ThermalParams } from './thermal';
 import type { ProfileJson, Scenario } from './types';
-import type { CloudParams, DayParams } from './irradiance';
+import type { Cloud, CloudParams, DayParams } from './irradiance';
 
 /** Every demo board reads a 10 kOhm B3435 NTC through a 10 kOhm pull-up on a 12-bit ADC. */
 const DEMO_THERMISTOR: ThermistorModel = {
@@ -548,6 +548,120 @@ function weakPanelTimer(): Scenario {
   };
 }
 
+// --- source sweeps: a person at the input set-point trimmer ---------------------------------
+
+/**
+ * A generic 36-cell "12 V" panel of about 20 W (open circuit 21.6 V, maximum power near 17.5 V at
+ * 25 C and 1000 W/m2, the usual class figures, common practice); every parameter is invented for
+ * the demo. Its voltage falls 0.36 %/C of Voc and its current rises 0.05 %/C of Isc.
+ */
+const SWEEP_PANEL_VOC_V = 21.6;
+const SWEEP_PANEL_COEFF_PCT_PER_C = -0.36;
+/** The set point the demo board left the bench with, turned by eye on a cold morning (invented). */
+const SWEEP_START_SETPOINT_V = 18.4;
+function sweepPanel(): PanelParams {
+  return panel36(1.25);
+}
+
+/** The trimmer's path: start at the profile's set point, up, slowly down across the range, up, back. */
+function trimmerPath(setpointV: number): { tS: number; vV: number }[] {
+  return [
+    { tS: 300, vV: setpointV },
+    { tS: 360, vV: 19.3 },
+    { tS: 690, vV: 13.8 },
+    { tS: 1020, vV: 19.3 },
+    { tS: 1080, vV: setpointV },
+  ];
+}
+
+function sweepScenario(name: string, description: string, clouds: Cloud[]): Scenario {
+  const profile: ProfileJson = {
+    name: 'boat house battery 12 V 100 Ah lead-acid on a 20 W panel (demo)',
+    chemistry: 'lead-acid',
+    cells: 6,
+    capacityAh: 100,
+    chargeCurrentA: 5,
+    terminationA: 1,
+    tempWindowC: [0, 45],
+    inputSetpointV: SWEEP_START_SETPOINT_V,
+    panelTempCoeffPctPerC: SWEEP_PANEL_COEFF_PCT_PER_C,
+    thermistor: DEMO_THERMISTOR,
+  };
+  return {
+    name,
+    description,
+    durationS: 30 * 60,
+    profile,
+    reportsNtc: false,
+    reportsPanelTemp: true,
+    bench: {
+      ...bench(profile, {
+        pack: {
+          chemistry: 'lead-acid',
+          cells: 6,
+          capacityAh: 100,
+          seriesOhmPerCell: 0.0008,
+          polarisationOhmPerCell: 0.0005,
+          polarisationTauS: 300,
+          acceptanceVPerC: 0.55,
+          acceptanceKneeSoc: 0.85,
+          voltsPerKPerCell: 0,
+          shortedCells: 0,
+          selfDischargeA: 0,
+        },
+        initialSoc: 0.5,
+        thermal: {
+          heatCapacityJPerK: 24000,
+          thermalResistanceKPerW: 0.7,
+          ambientC: 10,
+          chargerCouplingFraction: 0.05,
+        },
+        supply: { kind: 'panel', panel: sweepPanel() },
+        day: solarDay({ sunriseH: 6, sunsetH: 20, peakWPerM2: 900 }, 12.5, {
+          perHour: 0,
+          minDurationS: 0,
+          maxDurationS: 0,
+          minDepth: 0,
+          maxDepth: 0,
+        }),
+      }),
+      panelThermal: {
+        ambientC: 10,
+        noctC: 45,
+        tauS: 300,
+        iscCoeffAPerC: 0.0005 * 1.25,
+        vocCoeffVPerC: (SWEEP_PANEL_COEFF_PCT_PER_C / 100) * SWEEP_PANEL_VOC_V,
+      },
+      setpointPath: trimmerPath(SWEEP_START_SETPOINT_V),
+      fixedClouds: clouds,
+    },
+    expected: {
+      summary:
+        'bulk (cc) limited by the panel throughout; at most a warn input-low while the set point is low',
+      phases: ['cc'],
+      alarms: [],
+      noCritical: true,
+      fault: false,
+    },
+  };
+}
+
+function sweepTrimmer(): Scenario {
+  return sweepScenario(
+    'sweep-trimmer',
+    'Boat house 12 V lead-acid battery on a 20 W panel at steady noon light; a person turns the input set point slowly from 19.3 V down to 13.8 V and back.',
+    [],
+  );
+}
+
+function sweepClouds(): Scenario {
+  return sweepScenario(
+    'sweep-clouds',
+    'The same set-point sweep as sweep-trimmer, with a cloud taking 40 % of the light during the upward turn.',
+    [{ startS: 800, durationS: 240, depth: 0.4 }],
+  );
+}
+
 const BUILDERS: Record<string, () => Scenario> = {
   'bench-liion-3s': benchLiion3s,
   'solar-lifepo4-4s': solarLifepo4,
@@ -560,6 +674,8 @@ const BUILDERS: Record<string, () => Scenario> = {
   'loose-connection': looseConnection,
   'overvoltage-drift': overvoltageDrift,
   'weak-panel-timer': weakPanelTimer,
+  'sweep-trimmer': sweepTrimmer,
+  'sweep-clouds': sweepClouds,
 };
 
 export const SCENARIO_NAMES: readonly string[] = Object.keys(BUILDERS);

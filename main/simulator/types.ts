@@ -20,6 +20,8 @@ export interface ProfileJson {
   preconditionA?: number;
   preconditionTimeoutMin?: number;
   thermistor?: ThermistorModel;
+  /** The panel's voltage temperature coefficient, %/C (solar scenarios with a panel sensor). */
+  panelTempCoeffPctPerC?: number;
 }
 
 /** What the run should show when its lines go through Taperline's pipeline. */
@@ -45,5 +47,7 @@ export interface Scenario {
   bench: BenchParams;
   /** The firmware prints raw thermistor counts (`ntc`) instead of `temp` unless told otherwise. */
   reportsNtc: boolean;
+  /** The firmware also prints the panel temperature as the extra channel `tpanel`. */
+  reportsPanelTemp?: boolean;
   expected: ExpectedOutcome;
 }

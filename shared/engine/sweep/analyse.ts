@@ -100,7 +100,11 @@ export function analyseWindow(points: readonly SweepPoint[]): WindowResult {
     if (!curve) return { ok: false, reason: `${why}; the steady stretch could not be fitted`, irradiance };
     const again = checkSteadiness(stretch, curve);
     if (again.changed) {
-      return { ok: false, reason: `${why}; no stretch of steady light found: sweep again when the light is steady`, irradiance };
+      return {
+        ok: false,
+        reason: `${why}; no stretch of steady light found: sweep again when the light is steady`,
+        irradiance,
+      };
     }
     irradiance.restartedOn = { fromS: stretch[0].tS, toS: stretch[stretch.length - 1].tS };
   }
@@ -153,10 +157,20 @@ export function analyseSweep(samples: readonly TimedSample[], options: SweepOpti
       `${MIN_POINTS} samples or more); turn the set point slowly from one end of its range to the other`;
     return report;
   }
-  const usable: (SweepAtTime & { window: SweepWindow; irradiance: NonNullable<SweepReport['irradiance']> })[] = [];
+  const usable: (SweepAtTime & {
+    window: SweepWindow;
+    irradiance: NonNullable<SweepReport['irradiance']>;
+  })[] = [];
   for (const w of windows) {
     const r = analyseWindow(points.slice(w.from, w.to));
-    if (r.ok) usable.push({ tS: (w.fromS + w.toS) / 2, curve: r.curve, mpp: r.mpp, window: w, irradiance: r.irradiance });
+    if (r.ok)
+      usable.push({
+        tS: (w.fromS + w.toS) / 2,
+        curve: r.curve,
+        mpp: r.mpp,
+        window: w,
+        irradiance: r.irradiance,
+      });
     else {
       report.refused.push({ fromS: w.fromS, toS: w.toS, reason: r.reason });
       if (w === windows[windows.length - 1] && usable.length === 0) report.irradiance = r.irradiance;
@@ -187,8 +201,15 @@ export function analyseSweep(samples: readonly TimedSample[], options: SweepOpti
   const coeff = options.panelTempCoeffPctPerC;
   if (coeff !== undefined && coeff !== null) {
     const temps = extraChannel(samples, options.panelTempKey ?? 'tpanel');
-    const inSweep = temps.filter((x) => x.tS >= best.window.fromS && x.tS <= best.window.toS).map((x) => x.value);
-    report.temperature = temperatureShift(best.mpp.vV, coeff, inSweep, temps.map((x) => x.value));
+    const inSweep = temps
+      .filter((x) => x.tS >= best.window.fromS && x.tS <= best.window.toS)
+      .map((x) => x.value);
+    report.temperature = temperatureShift(
+      best.mpp.vV,
+      coeff,
+      inSweep,
+      temps.map((x) => x.value),
+    );
   }
   report.day = dayEfficiency(points, usable);
   return report;

@@ -6,7 +6,7 @@
  * its own scale of 1e-8.
  */
 import { levenbergMarquardt } from './least-squares';
-import { huberWeights, madSigma, quantile, rms } from './robust';
+import { bisquareWeights, huberWeights, madSigma, quantile, rms } from './robust';
 import { diodeCurrentA, saturationForOpenCircuitA, type DiodeParams } from './single-diode';
 import type { FittedCurve, SweepPoint } from './types';
 
@@ -22,8 +22,8 @@ function paramsOf(theta: readonly number[]): DiodeParams {
   return { ilA, i0A: saturationForOpenCircuitA(ilA, vocV, aV, rshOhm), aV, rsOhm, rshOhm };
 }
 
-/** Robust reweighting rounds after the first plain fit. */
-const REWEIGHT_ROUNDS = 3;
+/** Robust reweighting rounds of each kind after the plain fit. */
+const ROBUST_ROUNDS = 2;
 
 export function fitSingleDiode(points: readonly SweepPoint[]): DiodeFit | null {
   if (points.length < 12) return null;
@@ -37,11 +37,14 @@ export function fitSingleDiode(points: readonly SweepPoint[]): DiodeFit | null {
   // Open circuit first guess: the high-voltage end of the points extrapolated to zero current.
   const byV = points.map((p) => p).sort((a, b) => a.vV - b.vV);
   const tail = byV.slice(Math.floor(byV.length * 0.8));
-  const slope = lineSlope(tail.map((p) => p.vV), tail.map((p) => p.iA));
+  const slope = lineSlope(
+    tail.map((p) => p.vV),
+    tail.map((p) => p.iA),
+  );
   const tailEnd = tail[tail.length - 1];
-  const vocGuess =
-    slope < 0 ? Math.max(vMaxV * 1.005, tailEnd.vV - tailEnd.iA / slope) : vMaxV * 1.15;
+  const vocGuess = slope < 0 ? Math.max(vMaxV * 1.005, tailEnd.vV - tailEnd.iA / slope) : vMaxV * 1.15;
   const vocCap = Math.max(vocGuess * 1.6, vMaxV * 2);
+  const upper = [3 * iMaxA + 0.01, vocCap, vocCap / 5, (0.5 * vocCap) / iMaxA, (0.5 * 0.8 * iMaxA) / vocCap];
 
   const lower = [0.8 * iMaxA, 0.98 * vMaxV, vMaxV / 60, 0, 0];
   const residuals = (theta: readonly number[]): Float64Array => {
@@ -50,28 +53,28 @@ export function fitSingleDiode(points: readonly SweepPoint[]): DiodeFit | null {
     return Float64Array.from(points, (_pt, k) => i[k] - diodeCurrentA(p, v[k]));
   };
 
+  // A short plain fit from each start; the best one is then refined with robust weights:
+  // Huber rounds first (convex, safe from any start), then bisquare rounds, which give points
+  // far off the curve (a passing cloud, a glitch) no weight at all.
   let best: { theta: number[]; cost: number } | null = null;
   for (const lnRatio of [14, 19, 26]) {
     for (const rsShare of [0.005, 0.04]) {
       const voc = Math.min(vocGuess, vocCap * 0.99);
       const start = [iMaxA * 1.02, voc, voc / lnRatio, (rsShare * voc) / iMaxA, (0.002 * iMaxA) / voc];
-      const upper = [3 * iMaxA + 0.01, vocCap, vocCap / 5, (0.5 * vocCap) / iMaxA, (0.5 * lower[0]) / vocCap];
-      let weights: Float64Array | undefined;
-      let theta = start;
-      let cost = Infinity;
-      for (let round = 0; round <= REWEIGHT_ROUNDS; round++) {
-        const fit = levenbergMarquardt({ residuals, lower, upper, weights }, theta, 150);
-        theta = fit.theta;
-        const r = residuals(theta);
-        if (!r.every(Number.isFinite)) break;
-        weights = huberWeights(r, madSigma(r));
-        cost = huberCost(r, madSigma(r));
-      }
-      if (Number.isFinite(cost) && (!best || cost < best.cost)) best = { theta, cost };
+      const fit = levenbergMarquardt({ residuals, lower, upper }, start, 40);
+      if (Number.isFinite(fit.cost) && (!best || fit.cost < best.cost)) best = fit;
     }
   }
   if (!best) return null;
-  const params = paramsOf(best.theta);
+  let theta = best.theta;
+  for (let round = 0; round < 2 * ROBUST_ROUNDS; round++) {
+    const r = residuals(theta);
+    if (!r.every(Number.isFinite)) return null;
+    const sigma = madSigma(r);
+    const weights = round < ROBUST_ROUNDS ? huberWeights(r, sigma) : bisquareWeights(r, sigma);
+    theta = levenbergMarquardt({ residuals, lower, upper, weights }, theta, 60).theta;
+  }
+  const params = paramsOf(theta);
   const powerW = (vv: number): number => vv * diodeCurrentA(params, vv);
   const resW = points.map((p) => p.pW - powerW(p.vV));
   return {
@@ -83,13 +86,6 @@ export function fitSingleDiode(points: readonly SweepPoint[]): DiodeFit | null {
     points: points.length,
     rmsW: rms(resW),
   };
-}
-
-function huberCost(r: Float64Array, sigma: number): number {
-  const k = 1.345 * Math.max(sigma, 1e-12);
-  let s = 0;
-  for (const x of r) s += Math.abs(x) <= k ? 0.5 * x * x : k * (Math.abs(x) - 0.5 * k);
-  return s;
 }
 
 function lineSlope(x: number[], y: number[]): number {

@@ -121,7 +121,7 @@ export function levenbergMarquardt(
           cost = costNext;
           lambda = Math.max(lambda / 5, 1e-12);
           improved = true;
-          if (gain < 1e-12) return { theta, cost, iterations: it + 1 };
+          if (gain < 1e-10) return { theta, cost, iterations: it + 1 };
           break;
         }
       }

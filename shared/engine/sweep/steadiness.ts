@@ -32,7 +32,9 @@ export interface Steadiness {
 }
 
 function runningMedian(values: readonly number[], half: number): number[] {
-  return values.map((_, k) => median(values.slice(Math.max(0, k - half), Math.min(values.length, k + half + 1))));
+  return values.map((_, k) =>
+    median(values.slice(Math.max(0, k - half), Math.min(values.length, k + half + 1))),
+  );
 }
 
 export function checkSteadiness(points: readonly SweepPoint[], curve: FittedCurve): Steadiness {
@@ -95,7 +97,8 @@ function revisitEvidence(points: readonly SweepPoint[], idx: number[], ratio: nu
       if (b.tS - a.tS < REVISIT_APART_S) continue;
       if (Math.abs(a.vV - b.vV) > Math.max(0.02, 0.002 * a.vV)) continue;
       const share = Math.abs(ratio[x] - ratio[y]) / Math.max(ratio[x], ratio[y]);
-      if (share > STEADY_TOLERANCE && (!worst || share > worst.share)) worst = { a: idx[x], b: idx[y], share };
+      if (share > STEADY_TOLERANCE && (!worst || share > worst.share))
+        worst = { a: idx[x], b: idx[y], share };
     }
   }
   if (!worst) return null;
