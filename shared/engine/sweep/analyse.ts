@@ -63,7 +63,7 @@ type WindowResult =
 
 /** Fewest points and narrowest span a (restarted) fit may rest on. */
 const MIN_POINTS = 30;
-const MIN_SPAN_SHARE = 0.15;
+const MIN_SPAN_SHARE = 0.08;
 const CURVE_STEPS = 120;
 
 function spanOk(points: readonly SweepPoint[]): boolean {
@@ -153,7 +153,7 @@ export function analyseSweep(samples: readonly TimedSample[], options: SweepOpti
   report.sweeps = windows.length;
   if (windows.length === 0) {
     report.reason =
-      'no sweep found: the source voltage never moved across a wide range (at least 15 % of its value, ' +
+      'no sweep found: the source voltage never moved across a wide range (at least 8 % of its value, ' +
       `${MIN_POINTS} samples or more); turn the set point slowly from one end of its range to the other`;
     return report;
   }

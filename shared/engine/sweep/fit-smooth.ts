@@ -11,7 +11,7 @@ export interface SmoothFit extends FittedCurve {
 }
 
 /** Share of the points in each local window (Cleveland's span); a choice of this project. */
-const SPAN = 0.3;
+const SPAN = 0.12;
 const ROBUST_ROUNDS = 2;
 /** Grid the curve is tabulated on, then interpolated linearly. */
 const GRID = 240;
@@ -85,7 +85,7 @@ export function fitSmooth(points: readonly SweepPoint[]): SmoothFit | null {
     v: Float64Array.from(order, (k) => points[k].vV),
     p: Float64Array.from(order, (k) => points[k].pW),
   };
-  const k = Math.max(8, Math.round(SPAN * n));
+  const k = Math.max(12, Math.round(SPAN * n));
   let robustW: Float64Array = new Float64Array(n).fill(1);
   for (let round = 0; round <= ROBUST_ROUNDS; round++) {
     const res = Float64Array.from(s.v, (x, j) => s.p[j] - localQuadratic(s, robustW, x, k));

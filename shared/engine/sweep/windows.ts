@@ -13,8 +13,8 @@ const MOVE_SHARE = 0.02;
 const MOVE_MIN_V = 0.3;
 /** Moving stretches closer than this merge (the hand pauses on the trimmer). */
 const MERGE_GAP_S = 90;
-/** A sweep spans at least this share of its highest voltage, with this many points. */
-const SWEEP_SPAN_SHARE = 0.15;
+/** A sweep spans at least this share of its highest voltage (1.5 V on a 12 V-class panel), with this many points. */
+const SWEEP_SPAN_SHARE = 0.08;
 const SWEEP_MIN_POINTS = 30;
 
 export interface SweepWindow {
