@@ -16,6 +16,7 @@ import { runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
+import { SweepWatch } from './sweep-watch';
 
 /** How exports and reports leave the app. */
 export type ExportMode =
@@ -70,6 +71,11 @@ export function createAppService(options: AppServiceOptions): AppService {
     return snapshot ? view(snapshot) : null;
   });
 
+  const sweeps = new SweepWatch({
+    profileOf: (stationId) => stations.get(stationId)?.profile ?? null,
+    emit: (data) => emit({ push: 'sweep', data }),
+  });
+
   const historyOf = (stationId: string): StationHistory => {
     let history = histories.get(stationId);
     if (!history) {
@@ -89,10 +95,12 @@ export function createAppService(options: AppServiceOptions): AppService {
       batcher.forget(stationId);
       histories.delete(stationId);
       acks.forget(stationId);
+      sweeps.forget(stationId, true);
       emit({ push: 'station-removed', data: { stationId } });
     },
     sample: ({ stationId, sample }: Parameters<StationManagerListener<'sample'>>[0]) => {
       historyOf(stationId).addSample(sample);
+      sweeps.addSample(stationId, sample);
       batcher.addSample(stationId, sample);
     },
     event: ({ stationId, event }: { stationId: string; event: EngineEvent }) => {
@@ -176,6 +184,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       const snapshot = await stations.setProfile(stationId, profile);
       // A new run starts with a new time axis: the old history belongs to the closed run.
       histories.set(stationId, new StationHistory());
+      sweeps.forget(stationId, false);
       return view(snapshot);
     },
     'stations.history': ({ stationId, fromT }: P<'stations.history'>) => {
@@ -215,6 +224,32 @@ export function createAppService(options: AppServiceOptions): AppService {
         events: history.eventsFrom(),
         atT,
       });
+    },
+    'stations.sweep': ({ stationId, watch }: P<'stations.sweep'>) => {
+      needStation(stationId);
+      if (!watch) {
+        sweeps.unwatch(stationId);
+        return null;
+      }
+      return sweeps.watch(stationId);
+    },
+    'stations.setInputSetpoint': async ({ stationId, inputSetpointV }: P<'stations.setInputSetpoint'>) => {
+      needStation(stationId);
+      const json = stations.profileJsonOf?.(stationId);
+      if (!json || typeof json !== 'object' || Array.isArray(json))
+        throw new RequestError(
+          `station "${stationId}" has no profile to change yet: give it a profile first`,
+        );
+      // Two decimals: a trimmer is not set finer than 10 mV.
+      const profile = {
+        ...(json as Record<string, unknown>),
+        inputSetpointV: Math.round(inputSetpointV * 100) / 100,
+      };
+      resolveProfile(profile, 'profile with the new set point');
+      const snapshot = await stations.setProfile(stationId, profile);
+      histories.set(stationId, new StationHistory());
+      sweeps.forget(stationId, false);
+      return view(snapshot);
     },
     'ports.list': () => libs.listPorts(),
     'scenarios.list': () => libs.listScenarios(),
@@ -297,6 +332,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       return () => bus.off('push', listener);
     },
     close() {
+      sweeps.close();
       batcher.flushAll();
       batcher.close();
       for (const [name, fn] of Object.entries(listeners)) stations.off(name as never, fn as never);

@@ -371,6 +371,10 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       if (!st.source.send) throw new StationConfigError(`${st.label}: this source cannot send lines`);
       await st.source.send(text, ending);
     },
+    profileJsonOf(stationId: string): unknown {
+      const st = stations.get(stationId);
+      return st ? st.profileJson : null;
+    },
     async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
       const st = must(stationId);
       const profile = resolve(stationId, profileJson);

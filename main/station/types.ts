@@ -62,6 +62,8 @@ export interface StationManager extends EventEmitter<StationManagerEvents> {
   send(stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | ''): Promise<void>;
   /** Replace a station's profile: closes the current run and starts a new one. */
   setProfile(stationId: string, profile: unknown): Promise<StationSnapshot>;
+  /** The profile JSON the station runs with, as written or assumed (null for no such station). */
+  profileJsonOf?(stationId: string): unknown;
   /** Stop every station, close their runs cleanly, flush the recorder. */
   close(): Promise<void>;
 }

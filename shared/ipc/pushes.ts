@@ -29,4 +29,6 @@ export type PushEnvelope =
   | { push: 'lines'; data: { stationId: string; lines: unknown[] } }
   | { push: 'problem'; data: { stationId: string | null; message: string; level: 'warn' | 'critical' } }
   | { push: 'alarm-ack'; data: { stationId: string; code: string; t: number } }
-  | { push: 'command'; data: AppCommand };
+  | { push: 'command'; data: AppCommand }
+  /** SweepPayload (shared/ipc/payloads.ts): the live source sweep of a watched station. */
+  | { push: 'sweep'; data: unknown };
