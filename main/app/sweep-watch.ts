@@ -26,7 +26,9 @@ interface Kept {
 }
 
 interface Watched {
+  /** New points to push, and new points the last report has not seen. */
   dirty: boolean;
+  stale: boolean;
   lastAnalysisMs: number;
   lastDurationMs: number;
   report: SweepReport | null;
@@ -68,14 +70,14 @@ export class SweepWatch {
         list.findIndex((k) => k.tS >= s.t - KEEP_S),
       );
     const w = this.watched.get(stationId);
-    if (w) w.dirty = true;
+    if (w) w.dirty = w.stale = true;
   }
 
   /** Start watching; returns the payload now (analysed at once). */
   watch(stationId: string): SweepPayload {
     let w = this.watched.get(stationId);
     if (!w) {
-      w = { dirty: false, lastAnalysisMs: -Infinity, lastDurationMs: 0, report: null };
+      w = { dirty: false, stale: false, lastAnalysisMs: -Infinity, lastDurationMs: 0, report: null };
       this.watched.set(stationId, w);
     }
     this.timer ??= setInterval(() => this.tick(), PUSH_EVERY_MS);
@@ -134,6 +136,7 @@ export class SweepWatch {
       });
       w.lastAnalysisMs = this.nowMs();
       w.lastDurationMs = w.lastAnalysisMs - started;
+      w.stale = false;
     }
     return {
       stationId,

@@ -76,7 +76,17 @@ function spanOk(points: readonly SweepPoint[]): boolean {
   return points.length >= MIN_POINTS && hi - lo >= MIN_SPAN_SHARE * hi;
 }
 
-export function analyseWindow(points: readonly SweepPoint[]): WindowResult {
+/** Most points a fit rests on: more are thinned evenly in time (the fit cost grows with them). */
+const MAX_FIT_POINTS = 600;
+
+function thin(points: readonly SweepPoint[]): readonly SweepPoint[] {
+  if (points.length <= MAX_FIT_POINTS) return points;
+  const stride = points.length / MAX_FIT_POINTS;
+  return Array.from({ length: MAX_FIT_POINTS }, (_, k) => points[Math.floor(k * stride)]);
+}
+
+export function analyseWindow(all: readonly SweepPoint[]): WindowResult {
+  const points = thin(all);
   let curve = chooseFit(points);
   if (!curve) return { ok: false, reason: 'too few points to fit a curve', irradiance: null };
   const steady = checkSteadiness(points, curve);
