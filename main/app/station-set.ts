@@ -45,6 +45,7 @@ export function combineStationManagers(
     send: (stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | '') =>
       owner(stationId).send(stationId, text, ending),
     setProfile: (stationId: string, profile: unknown) => owner(stationId).setProfile(stationId, profile),
+    profileJsonOf: (stationId: string) => owner(stationId).profileJsonOf?.(stationId) ?? null,
     async close() {
       await Promise.all([live.close(), replays.close()]);
     },

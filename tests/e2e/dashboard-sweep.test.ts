@@ -69,6 +69,7 @@ test(
         return n;
       });
       assert.ok(painted > 1000, `painted pixels ${painted}`);
+      await screenshot(page, 'sweep-live');
     });
 
     await t.test('the maximum power point is marked with its voltage and power', async () => {
@@ -119,8 +120,25 @@ test(
         const mpp = (await page.locator('#sweep-mpp').textContent()) ?? '';
         assert.equal(mpp, `Maximum power point: ${r.mppV.toFixed(2)} V, ${r.mppW.toFixed(2)} W`);
         await screenshot(page, 'sweep');
-        assert.deepEqual(browser!.errors, []);
       },
     );
+
+    await t.test("writing the found voltage into the station's profile", async () => {
+      const label = (await page.locator('#sweep-write').textContent()) ?? '';
+      const [, v] = /Write (\d+\.\d\d) V/.exec(label) ?? [];
+      assert.ok(v, label);
+      await page.locator('#sweep-write').click();
+      await page.waitForFunction(() =>
+        /^(Written|Not written)/.test(document.querySelector('#sweep-write-status')?.textContent ?? ''),
+      );
+      assert.equal(
+        await page.locator('#sweep-write-status').textContent(),
+        `Written: the profile's set point is ${v} V (a new run started).`,
+      );
+      await page
+        .locator('#sweep-setpoint', { hasText: `Profile set point: ${Number(v).toFixed(1)} V` })
+        .waitFor();
+      assert.deepEqual(browser!.errors, []);
+    });
   },
 );
