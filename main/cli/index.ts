@@ -1,4 +1,4 @@
-/** The `taperline` command line (PROTOCOL section 4). Each command lives in its own module. */
+/** The `taperline` command line (as the README describes it). Each command lives in its own module. */
 import { Command, CommanderError } from 'commander';
 import { UsageError } from './errors';
 import { registerReplay } from './replay';

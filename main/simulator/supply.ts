@@ -97,7 +97,8 @@ export function settle(
     // its input regulation holds it at the set point: the low-voltage side, not the mirror
     // point of equal power above the maximum.
     const at = panelPoint(s.panel, setpointV, irradianceWPerM2);
-    if (Math.abs(pinW - at.pW) <= 1e-6 * Math.max(at.pW, 1e-9)) return { vinV: at.vV, iinA: at.iA, pinW: at.pW };
+    if (Math.abs(pinW - at.pW) <= 1e-6 * Math.max(at.pW, 1e-9))
+      return { vinV: at.vV, iinA: at.iA, pinW: at.pW };
   }
   let lo = Math.max(mppV, setpointV);
   if (panelPoint(s.panel, lo, irradianceWPerM2).pW < pinW) {

@@ -4,7 +4,7 @@ import type { ThermistorModel } from '@shared/telemetry/types';
 import type { AlarmCode, Phase } from '@shared/engine/types';
 import type { BenchParams } from './bench';
 
-/** A profile as a user writes it (PROTOCOL section 2): only the keys the demos use. */
+/** A profile as a user writes it (the README's profile keys): only the keys the demos use. */
 export interface ProfileJson {
   name: string;
   chemistry: Chemistry;

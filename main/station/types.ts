@@ -36,7 +36,7 @@ export interface StationConfig {
   label?: string;
   source: SourceConfig;
   /**
-   * Profile JSON as the user wrote it (PROTOCOL section 2); validated on add. Null or absent:
+   * Profile JSON as the user wrote it (the README's profile keys); validated on add. Null or absent:
    * a Li-ion pack is assumed from the first pack voltage (as `replay` does without --profile),
    * and the run starts with that first sample.
    */

@@ -1,5 +1,5 @@
 /**
- * Profile validation (PROTOCOL section 2): the user's JSON -> a ResolvedProfile with every
+ * Profile validation (the profile keys of the README): the user's JSON -> a ResolvedProfile with every
  * limit filled in from the chemistry's defaults, or a refusal that names the bad key and why.
  */
 import { z } from 'zod';
@@ -81,7 +81,7 @@ export const profileSchema = z.strictObject({
   preconditionTimeoutMin: positive().optional(),
   stallMin: positive().optional(),
   silenceS: positive().optional(),
-  // Beyond PROTOCOL's list: the chemistry-specific limits of ResolvedProfile, so a gel battery
+  // Beyond the README's list: the chemistry-specific limits of ResolvedProfile, so a gel battery
   // (float 2.25 V, −5 mV/°C) or a particular NiMH cell can be described without code changes.
   floatVPerCell: positive().optional(),
   minusDeltaVPerCell: positive().optional(),
@@ -360,7 +360,7 @@ function round6(x: number): number {
   return Math.round(x * 1e6) / 1e6;
 }
 
-/** Validate a profile (PROTOCOL section 2) and fill in every default. Never throws. */
+/** Validate a profile (the README's keys) and fill in every default. Never throws. */
 export function parseProfile(input: unknown): ProfileResult {
   const parsed = profileSchema.safeParse(input, { reportInput: true });
   if (!parsed.success) return describeIssue(parsed.error.issues[0]);

@@ -1,4 +1,4 @@
-/** Profile types: what is being charged and how it reports (PROTOCOL section 2). */
+/** Profile types: what is being charged and how it reports (the profile keys the README lists). */
 import type { FieldMap, ThermistorModel } from '../telemetry/types';
 
 export type Chemistry = 'li-ion' | 'li-ion-hv' | 'lifepo4' | 'lead-acid' | 'nimh';

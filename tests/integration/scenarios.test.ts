@@ -89,7 +89,7 @@ test('bench-liion-3s: cc -> cv -> done, no critical alarm, 85-95 % efficiency', 
   assert.equal(o.state.phase, 'done');
   const eff = o.state.metrics.efficiency;
   assert.ok(eff !== null && eff > 0.85 && eff < 0.95, `efficiency ${eff}`);
-  // From 30 % of 2.5 Ah to about full: some 1.7 Ah delivered (REFERENCES §9 coulomb counting).
+  // From 30 % of 2.5 Ah to about full: some 1.7 Ah delivered (coulomb counting: Ah = integral of I dt / 3600).
   assert.ok(o.state.metrics.ah > 1.6 && o.state.metrics.ah < 1.85, `${o.state.metrics.ah} Ah`);
 });
 
@@ -118,7 +118,7 @@ test('lead-acid-float: bulk, absorption, then float (done) at the compensated fl
   checkExpected('lead-acid-float', o);
   const last = o.samples[o.samples.length - 1];
   assert.ok(last.vbatV !== undefined && last.tempC !== undefined);
-  // REFERENCES §3: float 2.30 V/cell at 25 C, -3 mV/K/cell (BU-403).
+  // Battery University BU-403: float 2.30 V/cell at 25 C, -3 mV/K/cell.
   const floatV = 6 * (2.3 - 0.003 * (last.tempC - 25));
   assert.ok(Math.abs(last.vbatV - floatV) < 0.05, `float ${last.vbatV} V vs ${floatV.toFixed(3)} V`);
 });

@@ -130,7 +130,7 @@ test('checksummed lines carry a correct NMEA XOR; firmware messages start with #
       messages++;
       continue;
     }
-    // REFERENCES §8: checksum = XOR of every character before the `*`, two hex digits.
+    // NMEA 0183 checksum (Vaisala WXT530 User's Guide): XOR of every character before the `*`, two hex digits.
     const m = /^(.*)\*([0-9A-F]{2})$/.exec(line);
     assert.ok(m, line);
     assert.equal(parseInt(m[2], 16), nmeaChecksum(m[1]));
@@ -142,7 +142,7 @@ test('raw ntc counts follow the thermistor divider; an open NTC pins them at the
   const s = getScenario('open-thermistor');
   const th = s.profile.thermistor;
   assert.ok(th && th.model === 'beta');
-  // REFERENCES §5: at 25 C a 10 k NTC against a 10 k pull-up reads half scale (R = R25).
+  // Beta model (R = R25 at 25 C; EPCOS B57330V2103 table: 10 000 ohm at 25 C): a 10 k NTC against a 10 k pull-up reads half scale (R = R25).
   assert.equal(thermistorReading(th, 25), Math.round(4095 / 2));
   const lines = [...simulatedLines('open-thermistor', { shape: 'kv', sampleIntervalS: 10 })];
   const samples = samplesOf(lines, th);
@@ -203,7 +203,7 @@ test('the firmware outcome of each scenario comes from its physical cause', () =
   assert.ok(has(outcome('lead-acid-float').modes, ['cc', 'cv', 'done']));
   assert.ok(has(outcome('nimh-4s').modes, ['cc', 'done']));
   assert.ok(has(outcome('solar-lifepo4-4s').modes, ['cc', 'cv']));
-  // REFERENCES §1: 4.25 V/cell upper limit; the drifting reference pushes the pack past it.
+  // 4.25 V/cell upper limit (TI E2E design note "JEITA Battery Temperature Standard"); the drifting reference pushes the pack past it.
   assert.ok(outcome('overvoltage-drift').maxVPerCell > 4.25);
   assert.ok(outcome('bench-liion-3s').maxVPerCell <= 4.2 + 0.01);
 });
@@ -226,7 +226,7 @@ test('NiMH ends on -dV: the voltage falls 5 mV/cell from its peak while the pack
   assert.ok(atEnd, 'the charge ends');
   // The warming between peak and end is what turns into -dV (negative temperature coefficient).
   assert.ok(atEnd.tempC > tempAtPeak + 1);
-  // Panasonic rapid-charge window 0-40 C (REFERENCES §4): the -dV end comes before it.
+  // Panasonic rapid-charge window 0-40 C (Panasonic NiMH handbook, from memory): the -dV end comes before it.
   assert.ok(atEnd.tempC < 40);
 });
 
