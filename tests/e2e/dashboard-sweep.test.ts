@@ -69,7 +69,6 @@ test(
         return n;
       });
       assert.ok(painted > 1000, `painted pixels ${painted}`);
-      await screenshot(page, 'sweep-live');
     });
 
     await t.test('the maximum power point is marked with its voltage and power', async () => {
@@ -85,6 +84,8 @@ test(
         /^Write \d+\.\d\d V into the profile$/,
       );
       assert.match((await page.locator('#sweep-setpoint').textContent()) ?? '', /Profile set point: 18\.4 V/);
+      // Mid-sweep: the newest points dark, the older fading, the curve through them.
+      await screenshot(page, 'sweep-live');
     });
 
     await t.test(
