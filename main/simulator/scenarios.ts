@@ -563,18 +563,32 @@ function sweepPanel(): PanelParams {
   return panel36(1.25);
 }
 
-/** The trimmer's path: start at the profile's set point, up, slowly down across the range, up, back. */
-function trimmerPath(setpointV: number): { tS: number; vV: number }[] {
+/**
+ * The trimmer's path from `startS`: from the set point up, slowly down across the range, up, and
+ * back to `endV` (where the person leaves it).
+ */
+function trimmerPath(startS: number, fromV: number, endV: number): { tS: number; vV: number }[] {
   return [
-    { tS: 300, vV: setpointV },
-    { tS: 360, vV: 19.3 },
-    { tS: 690, vV: 13.8 },
-    { tS: 1020, vV: 19.3 },
-    { tS: 1080, vV: setpointV },
+    { tS: startS, vV: fromV },
+    { tS: startS + 60, vV: 19.3 },
+    { tS: startS + 390, vV: 13.8 },
+    { tS: startS + 720, vV: 19.3 },
+    { tS: startS + 780, vV: endV },
   ];
 }
 
-function sweepScenario(name: string, description: string, clouds: Cloud[]): Scenario {
+const HALF_HOUR_S = 30 * 60;
+
+interface SweepDay {
+  durationS: number;
+  startClockH: number;
+  path: { tS: number; vV: number }[];
+  /** Seeded passing clouds per hour (0 = none), besides the fixed ones. */
+  cloudsPerHour: number;
+  clouds: Cloud[];
+}
+
+function sweepScenario(name: string, description: string, day: SweepDay): Scenario {
   const profile: ProfileJson = {
     name: 'boat house battery 12 V 100 Ah lead-acid on a 20 W panel (demo)',
     chemistry: 'lead-acid',
@@ -590,7 +604,7 @@ function sweepScenario(name: string, description: string, clouds: Cloud[]): Scen
   return {
     name,
     description,
-    durationS: 30 * 60,
+    durationS: day.durationS,
     profile,
     reportsNtc: false,
     reportsPanelTemp: true,
@@ -617,12 +631,12 @@ function sweepScenario(name: string, description: string, clouds: Cloud[]): Scen
           chargerCouplingFraction: 0.05,
         },
         supply: { kind: 'panel', panel: sweepPanel() },
-        day: solarDay({ sunriseH: 6, sunsetH: 20, peakWPerM2: 900 }, 12.5, {
-          perHour: 0,
-          minDurationS: 0,
-          maxDurationS: 0,
-          minDepth: 0,
-          maxDepth: 0,
+        day: solarDay({ sunriseH: 6, sunsetH: 20, peakWPerM2: 900 }, day.startClockH, {
+          perHour: day.cloudsPerHour,
+          minDurationS: 240,
+          maxDurationS: 900,
+          minDepth: 0.2,
+          maxDepth: 0.6,
         }),
       }),
       panelThermal: {
@@ -632,8 +646,8 @@ function sweepScenario(name: string, description: string, clouds: Cloud[]): Scen
         iscCoeffAPerC: 0.0005 * 1.25,
         vocCoeffVPerC: (SWEEP_PANEL_COEFF_PCT_PER_C / 100) * SWEEP_PANEL_VOC_V,
       },
-      setpointPath: trimmerPath(SWEEP_START_SETPOINT_V),
-      fixedClouds: clouds,
+      setpointPath: day.path,
+      fixedClouds: day.clouds,
     },
     expected: {
       summary:
@@ -650,7 +664,13 @@ function sweepTrimmer(): Scenario {
   return sweepScenario(
     'sweep-trimmer',
     'Boat house 12 V lead-acid battery on a 20 W panel at steady noon light; a person turns the input set point slowly from 19.3 V down to 13.8 V and back.',
-    [],
+    {
+      durationS: HALF_HOUR_S,
+      startClockH: 12.5,
+      path: trimmerPath(300, SWEEP_START_SETPOINT_V, SWEEP_START_SETPOINT_V),
+      cloudsPerHour: 0,
+      clouds: [],
+    },
   );
 }
 
@@ -658,7 +678,28 @@ function sweepClouds(): Scenario {
   return sweepScenario(
     'sweep-clouds',
     'The same set-point sweep as sweep-trimmer, with a cloud taking 40 % of the light during the upward turn.',
-    [{ startS: 800, durationS: 240, depth: 0.4 }],
+    {
+      durationS: HALF_HOUR_S,
+      startClockH: 12.5,
+      path: trimmerPath(300, SWEEP_START_SETPOINT_V, SWEEP_START_SETPOINT_V),
+      cloudsPerHour: 0,
+      clouds: [{ startS: 800, durationS: 240, depth: 0.4 }],
+    },
+  );
+}
+
+function sweepDay(): Scenario {
+  // Three sweeps an hour and a half apart from late morning, each leaving the set point a little
+  // nearer the maximum; passing clouds in between (seeded).
+  const path = [
+    ...trimmerPath(600, SWEEP_START_SETPOINT_V, 17.6),
+    ...trimmerPath(600 + 5400, 17.6, 17.0),
+    ...trimmerPath(600 + 10800, 17.0, 16.7),
+  ];
+  return sweepScenario(
+    'sweep-day',
+    'The boat house panel from 10:00 to 14:00 with passing clouds; three set-point sweeps, each leaving the set point nearer the maximum.',
+    { durationS: 4 * 3600, startClockH: 10, path, cloudsPerHour: 1.2, clouds: [] },
   );
 }
 
@@ -676,6 +717,7 @@ const BUILDERS: Record<string, () => Scenario> = {
   'weak-panel-timer': weakPanelTimer,
   'sweep-trimmer': sweepTrimmer,
   'sweep-clouds': sweepClouds,
+  'sweep-day': sweepDay,
 };
 
 export const SCENARIO_NAMES: readonly string[] = Object.keys(BUILDERS);

@@ -17,7 +17,7 @@ import type { Sample } from '@shared/telemetry/types';
 
 const PROFILE_DIR = join(__dirname, '..', 'fixtures', 'profiles');
 
-test('the thirteen scenarios are listed with one-line descriptions', () => {
+test('the fourteen scenarios are listed with one-line descriptions', () => {
   const list = listScenarios();
   assert.deepEqual(
     list.map((s) => s.name),
@@ -35,6 +35,7 @@ test('the thirteen scenarios are listed with one-line descriptions', () => {
       'weak-panel-timer',
       'sweep-trimmer',
       'sweep-clouds',
+      'sweep-day',
     ],
   );
   for (const s of list) assert.ok(s.description.length > 20 && !s.description.includes('\n'), s.name);

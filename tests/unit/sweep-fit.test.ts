@@ -172,3 +172,22 @@ test('the points helper skips samples without both vin and iin', () => {
     [0, 4],
   );
 });
+
+test('a morning of passing clouds and three sweeps: the estimated MPPT efficiency matches the truth', () => {
+  const day = simulateSweep('sweep-day');
+  const r = analyseSweep(day.samples, optionsOf(day));
+  assert.equal(r.ok, true, r.reason ?? '');
+  assert.equal(r.sweeps, 3);
+  assert.ok(r.day && r.day.efficiency !== null && r.day.sweeps >= 2, JSON.stringify(r.refused));
+  // Truth: EN 50530's ratio with the simulator's true maximum at every sample.
+  const pts = pointsFromSamples(day.samples);
+  const truthEta = mpptEfficiency(
+    pts.map((p) => p.tS),
+    pts.map((p) => p.pW),
+    pts.map((p) => truthAt(day.truth, p.tS).mppW),
+  ).efficiency!;
+  assert.ok(Math.abs(r.day.efficiency - truthEta) < 0.01, `estimated ${r.day.efficiency}, truth ${truthEta}`);
+  assert.ok(r.day.coverage > 0.9, `coverage ${r.day.coverage}`);
+  // The last sweep answers the question, about the set point the person left.
+  assert.ok(r.window && r.window.fromS > 10_000);
+});

@@ -200,7 +200,6 @@ export function analyseSweep(samples: readonly TimedSample[], options: SweepOpti
   report.fit = { points: best.curve.points, rmsW: best.curve.rmsW, model: best.curve.model };
   report.irradiance = best.irradiance;
   report.curve = tabulate(best.curve);
-  report.refused = report.refused.filter((r) => r.fromS > best.window.toS);
   const opV = report.operatingV;
   if (opV !== null) {
     const inRange = opV >= best.curve.vMinV && opV <= best.curve.vMaxV;
