@@ -6,7 +6,14 @@
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 
-const BENCHES = ['parse-bench.ts', 'engine-bench.ts', 'replay-bench.ts', 'record-bench.ts', 'chart-bench.ts'];
+const BENCHES = [
+  'parse-bench.ts',
+  'engine-bench.ts',
+  'replay-bench.ts',
+  'record-bench.ts',
+  'chart-bench.ts',
+  'sweep-bench.ts',
+];
 const extra = process.argv.slice(2);
 let failed = 0;
 for (const bench of BENCHES) {

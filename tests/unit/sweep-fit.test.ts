@@ -73,6 +73,17 @@ test('a cloud during the sweep: restarted on the steady stretch, within 3 % of t
   assert.ok(cloudy.length > 0 && cloudy.every((x) => x.t < on.fromS || x.t > on.toS));
 });
 
+test('the sweep scenarios meet their expected outcome: panel-limited bulk, no critical alarm', () => {
+  for (const run of [trimmer, clouds]) {
+    const phases = run.events
+      .filter((e) => e.type === 'phase')
+      .map((e) => (e.type === 'phase' ? e.phase : ''));
+    assert.ok(phases.includes('cc'), phases.join(','));
+    assert.ok(!phases.includes('fault'));
+    assert.ok(!run.events.some((e) => e.type === 'alarm' && e.level === 'critical'));
+  }
+});
+
 test('a sweep that never passes the maximum is refused: the peak lies outside the swept range', () => {
   const high = trimmer.samples.filter((s) => (s.vinV ?? 0) > 17.3);
   const r = analyseSweep(high, optionsOf(trimmer));

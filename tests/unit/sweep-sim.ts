@@ -6,7 +6,7 @@
 import { parseProfile } from '@shared/chemistry/profile';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { createPipeline } from '@shared/engine/pipeline';
-import type { TimedSample } from '@shared/engine/types';
+import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import { getScenario } from '../../main/simulator/scenarios';
 import { createTelemetryRun } from '../../main/simulator/telemetry';
 
@@ -23,6 +23,7 @@ export interface SimulatedSweep {
   samples: TimedSample[];
   truth: Truth[];
   lines: string[];
+  events: EngineEvent[];
 }
 
 export function simulateSweep(name: string, seed = 1): SimulatedSweep {
@@ -34,10 +35,12 @@ export function simulateSweep(name: string, seed = 1): SimulatedSweep {
   const samples: TimedSample[] = [];
   const truth: Truth[] = [];
   const lines: string[] = [];
+  const events: EngineEvent[] = [];
   let rxS = 1_700_000_000;
   for (const line of run.lines()) {
     lines.push(line.text);
     const out = pipeline.pushLine(line.text, rxS++, false);
+    events.push(...out.events);
     if (!out.sample) continue;
     const r = run.bench.readings();
     if (!r.truthMpp) throw new Error(`${name}: no panel truth`);
@@ -50,7 +53,7 @@ export function simulateSweep(name: string, seed = 1): SimulatedSweep {
       panelTempC: r.panelTempC,
     });
   }
-  return { profile: parsed.profile, samples, truth, lines };
+  return { profile: parsed.profile, samples, truth, lines, events };
 }
 
 /** The truth at the sample nearest to run time `tS`. */
