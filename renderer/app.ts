@@ -2,6 +2,7 @@
  * Entry of the dashboard renderer. It runs sandboxed (no Node, no Electron): it talks to the
  * backend through renderer/api.ts, keeps what it hears in the store, and shows it in views.
  */
+import { AlarmCenter } from './alarm-center';
 import { createApi } from './api';
 import { installBenchHook } from './bench-hook';
 import { button, byId, h } from './dom';
@@ -36,12 +37,13 @@ function start(): void {
       }
       if (previous !== current) views[previous]?.hide();
       views[current].show(target);
-      document.title = `Taperline · ${navLabel(current)}`;
+      alarms.setBaseTitle(`Taperline · ${navLabel(current)}`);
       if (window.location.hash !== `#${current}`)
         history.replaceState(null, '', `${window.location.search}#${current}`);
     },
   };
 
+  const alarms = new AlarmCenter(byId('alarm-center'), store, api, nav);
   const bench = new BenchView(byId('view-bench'), store, api, nav);
   views.bench = bench;
   views.rack = new RackView(byId('view-rack'), store, nav);

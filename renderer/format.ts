@@ -45,7 +45,7 @@ export function formatTimeOfDay(unixS: number): string {
   return `${pad(d.getHours())}:${pad(d.getMinutes())}:${pad(d.getSeconds())}.${Math.floor(d.getMilliseconds() / 100)}`;
 }
 
-/** Phase codes (PROTOCOL section 3) in words a person reads from across the bench. */
+/** Phase codes (docs/codes.md) in words a person reads from across the bench. */
 export const PHASE_WORDS: Record<Phase, string> = {
   precondition: 'Precondition',
   cc: 'Constant current',
@@ -55,7 +55,7 @@ export const PHASE_WORDS: Record<Phase, string> = {
   idle: 'Idle',
 };
 
-/** Lead-acid names its stages bulk / absorption / float (PROTOCOL section 3). */
+/** Lead-acid names its stages bulk / absorption / float (docs/codes.md). */
 export function phaseWords(phase: Phase, chemistry?: string): string {
   if (chemistry === 'lead-acid') {
     if (phase === 'cc') return 'Bulk (constant current)';

@@ -1,6 +1,6 @@
 /**
  * `taperline diagnose`: reads a run (telemetry file, standard input or a recorded run) through
- * the same pipeline as a live port and explains its first fault (PROTOCOL sections 3 and 4).
+ * the same pipeline as a live port and explains its first fault (docs/codes.md and docs/cli.md).
  */
 import type { Command } from 'commander';
 import { diagnose, type Diagnosis } from '@shared/engine/diagnosis';

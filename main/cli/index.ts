@@ -1,4 +1,4 @@
-/** The `taperline` command line (as the README describes it). Each command lives in its own module. */
+/** The `taperline` command line (docs/cli.md). Each command lives in its own module. */
 import { Command, CommanderError } from 'commander';
 import { UsageError } from './errors';
 import { registerReplay } from './replay';
@@ -9,6 +9,7 @@ import { registerServe } from './serve';
 import { registerReport } from './report';
 import { registerDiagnose } from './diagnose';
 import { registerSweep } from './sweep';
+import { registerCheck } from './check';
 
 export async function runCli(argv: string[]): Promise<number> {
   const program = new Command('taperline')
@@ -24,6 +25,7 @@ export async function runCli(argv: string[]): Promise<number> {
     registerReport,
     registerDiagnose,
     registerSweep,
+    registerCheck,
   ]) {
     register(program);
   }

@@ -1,10 +1,10 @@
 /** Types of the simulator's public surface: scenarios, their profiles and expected outcomes. */
-import type { Chemistry } from '@shared/chemistry/types';
+import type { Chemistry, ExpectRanges } from '@shared/chemistry/types';
 import type { ThermistorModel } from '@shared/telemetry/types';
 import type { AlarmCode, Phase } from '@shared/engine/types';
 import type { BenchParams } from './bench';
 
-/** A profile as a user writes it (the README's profile keys): only the keys the demos use. */
+/** A profile as a user writes it (docs/profile.md): only the keys the demos use. */
 export interface ProfileJson {
   name: string;
   chemistry: Chemistry;
@@ -22,6 +22,8 @@ export interface ProfileJson {
   thermistor?: ThermistorModel;
   /** The panel's voltage temperature coefficient, %/C (solar scenarios with a panel sensor). */
   panelTempCoeffPctPerC?: number;
+  /** What the board was designed to do (board checks). */
+  expect?: ExpectRanges;
 }
 
 /** What the run should show when its lines go through Taperline's pipeline. */
@@ -49,5 +51,7 @@ export interface Scenario {
   reportsNtc: boolean;
   /** The firmware also prints the panel temperature as the extra channel `tpanel`. */
   reportsPanelTemp?: boolean;
+  /** The board under test's id, printed by the firmware at boot (`# board=… fw=…`). */
+  board?: string;
   expected: ExpectedOutcome;
 }

@@ -5,6 +5,11 @@
 import type { Chart, Plugin } from 'chart.js';
 import { hatchTile } from './phase-style';
 import type { PhaseSpan } from './phase-spans';
+import { layoutLabelRows, type LabelBox } from './label-rows';
+
+const LABEL_FONT = '600 11px system-ui, sans-serif';
+const LABEL_ROW_PX = 14;
+const MAX_LABEL_ROWS = 3;
 
 export interface TimeMarker {
   t: number;
@@ -66,6 +71,8 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
       const x = chart.scales.x;
       if (!x || !chartArea) return;
       ctx.save();
+      ctx.font = LABEL_FONT;
+      const labelled: { marker: TimeMarker; box: LabelBox }[] = [];
       for (const marker of source.markers()) {
         if (marker.t < x.min || marker.t > x.max) continue;
         const px = Math.round(x.getPixelForValue(marker.t)) + 0.5;
@@ -77,13 +84,39 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
         ctx.lineTo(px, chartArea.bottom);
         ctx.stroke();
         if (marker.label) {
-          ctx.setLineDash([]);
-          ctx.font = '600 11px system-ui, sans-serif';
-          ctx.fillStyle = MARKER_INK[marker.kind];
           const w = ctx.measureText(marker.label).width;
           const lx = px + 4 + w > chartArea.right ? px - 4 - w : px + 4;
-          ctx.fillText(marker.label, lx, chartArea.top + 12);
+          labelled.push({ marker, box: { x: lx, widthPx: w } });
         }
+      }
+      // Labels in rows along the top, so close markers never print over each other.
+      const rowsFit = Math.max(
+        1,
+        Math.min(MAX_LABEL_ROWS, Math.floor((chartArea.bottom - chartArea.top) / 3 / LABEL_ROW_PX)),
+      );
+      const layout = layoutLabelRows(
+        labelled.map((l) => l.box),
+        rowsFit,
+      );
+      ctx.setLineDash([]);
+      labelled.forEach(({ marker, box }, i) => {
+        const row = layout.rows[i];
+        if (row < 0) return;
+        const y = chartArea.top + 2 + row * LABEL_ROW_PX;
+        // A paper-coloured plate behind the text keeps it legible over the trace.
+        ctx.fillStyle = 'rgba(251, 249, 243, 0.85)';
+        ctx.fillRect(box.x - 2, y, box.widthPx + 4, LABEL_ROW_PX - 1);
+        ctx.fillStyle = MARKER_INK[marker.kind];
+        ctx.fillText(marker.label!, box.x, y + LABEL_ROW_PX - 3);
+      });
+      if (layout.hidden > 0) {
+        const note = `+${layout.hidden} more`;
+        const w = ctx.measureText(note).width;
+        const y = chartArea.top + 2 + rowsFit * LABEL_ROW_PX;
+        ctx.fillStyle = 'rgba(251, 249, 243, 0.85)';
+        ctx.fillRect(chartArea.right - w - 6, y, w + 4, LABEL_ROW_PX - 1);
+        ctx.fillStyle = MARKER_INK['alarm-warn'];
+        ctx.fillText(note, chartArea.right - w - 4, y + LABEL_ROW_PX - 3);
       }
       ctx.restore();
     },

@@ -1,7 +1,7 @@
 /**
  * Stacked Chart.js trends on one shared run-time axis, one chart per physical quantity.
  *
- * Kept fast the way PITFALLS says: no animation, no parsing, no points, fixed scale bounds
+ * Kept fast as the Chart.js "Performance" documentation advises: no animation, no parsing, no points, fixed scale bounds
  * set here, data decimated by the source to about two points per pixel column, and at most
  * MAX_REDRAWS_PER_SECOND redraws (requestAnimationFrame plus a time gate). Zoom and pan move
  * the x scale's min/max directly: wheel or drag on a chart, arrow and +/- keys, or the view's

@@ -23,6 +23,7 @@ import type { StationModel, Store } from '../store';
 import { errorText, readEvents, readRun, type RunListRow } from '../wire';
 import { renderAlarmList, type AlarmRow } from './alarm-list';
 import { phaseLegend } from './phase-legend';
+import { recordingBadge, sourceBadge } from './station-status';
 
 const SPANS: { label: string; spanS: number | null }[] = [
   { label: '1 h', spanS: 3600 },
@@ -295,21 +296,8 @@ export class BenchView implements View {
       const m = this.liveModel();
       if (m) {
         parts.push(
-          h(
-            'span',
-            // The detail is long when all is well; it is spelled out only when the source is in trouble.
-            { class: `source-state source-${m.view.source.state}`, title: m.view.source.detail },
-            `Source ${m.view.sourceLabel}: ${m.view.source.state}${m.view.source.detail && m.view.source.state !== 'open' ? ` — ${m.view.source.detail}` : ''}`,
-          ),
-          h(
-            'span',
-            { class: `rec-state${m.view.recording.ok ? '' : ' rec-bad'}` },
-            m.view.recording.ok
-              ? m.view.runId !== null
-                ? `● Recording run ${m.view.runId}`
-                : 'Not recording'
-              : `✖ Recording failed: ${m.view.recording.problem ?? 'unknown problem'}`,
-          ),
+          sourceBadge(m.view),
+          recordingBadge(m.view),
           button('Line feed', () => this.nav.open({ view: 'feed', stationId: m.view.id }), {
             class: 'btn btn-quiet',
           }),

@@ -14,7 +14,7 @@ import type { Store } from '../store';
 import { errorText, readDiagnosis, readEvents, readRun, type Diagnosis } from '../wire';
 import { phaseLegend } from './phase-legend';
 
-/** Cause codes (PROTOCOL section 3) in words. */
+/** Cause codes (docs/codes.md) in words. */
 const CAUSE_WORDS: Record<string, string> = {
   'damaged-cell': 'Damaged cell',
   'weak-source': 'Weak source (panel or adapter cannot supply the charger)',

@@ -1,6 +1,6 @@
 /**
  * The profile editor: chemistry presets, cells, capacity, currents, limits and the field
- * mapping, turned into profile JSON (PROTOCOL section 2). An empty box means "the chemistry's
+ * mapping, turned into profile JSON (docs/profile.md). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
 import { gardenSensorPack } from '@shared/chemistry/demo-profiles';

@@ -108,15 +108,15 @@ export class RunsView implements View {
           `Delete run ${run.id} and all its samples? This cannot be undone.`,
         ),
         button('Yes, delete', () => void this.remove(run), { class: 'btn btn-small btn-danger' }),
-        button(
-          'Keep it',
-          () => {
-            this.confirming = null;
-            this.renderTable();
-          },
-          { class: 'btn btn-small' },
-        ),
+        button('Keep it', () => this.cancelDelete(run.id), { class: 'btn btn-small btn-keep' }),
       );
+      // Escape anywhere in the question keeps the run, as "Keep it" does.
+      actions.addEventListener('keydown', (e) => {
+        if (e.key === 'Escape') {
+          e.preventDefault();
+          this.cancelDelete(run.id);
+        }
+      });
     } else {
       const label = (what: string) => `${what} run ${run.id}`;
       actions.append(
@@ -141,9 +141,10 @@ export class RunsView implements View {
           () => {
             this.confirming = run.id;
             this.renderTable();
-            (this.tableHost.querySelector('.btn-danger') as HTMLButtonElement | null)?.focus();
+            // Focus the safe choice: Enter or Space right after "Delete…" keeps the run.
+            (this.tableHost.querySelector('.btn-keep') as HTMLButtonElement | null)?.focus();
           },
-          { class: 'btn btn-small btn-quiet', 'aria-label': label('Delete') },
+          { class: 'btn btn-small btn-quiet btn-delete', 'aria-label': label('Delete') },
         ),
       );
     }
@@ -160,6 +161,15 @@ export class RunsView implements View {
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
       h('td', {}, actions),
     );
+  }
+
+  private cancelDelete(runId: number): void {
+    this.confirming = null;
+    this.renderTable();
+    this.status.textContent = `Run ${runId} was kept.`;
+    (
+      this.tableHost.querySelector(`tr[data-run="${runId}"] .btn-delete`) as HTMLButtonElement | null
+    )?.focus();
   }
 
   private async remove(run: RunListRow): Promise<void> {

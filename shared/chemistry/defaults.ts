@@ -157,14 +157,14 @@ export const CHEMISTRY_DEFAULTS: Readonly<Record<Chemistry, Readonly<ChemistryDe
  * withheld by the engine until the profile states capacityAh. */
 export const ASSUMED_CAPACITY_AH = 1;
 
-/** Silence after which telemetry counts as lost: 10 s (PROTOCOL section 3 default). */
+/** Silence after which telemetry counts as lost: 10 s (docs/codes.md default). */
 export const DEFAULT_SILENCE_S = 10;
 
-/** Precondition timeout without a safety timer: 30 min (PROTOCOL section 3 default). */
+/** Precondition timeout without a safety timer: 30 min (docs/codes.md default). */
 export const DEFAULT_PRECONDITION_TIMEOUT_MIN = 30;
 
 /** With a safety timer, precondition may last timerMin/8: the usual rule of chargers with a
- * safety timer (PROTOCOL section 3; common practice). */
+ * safety timer (docs/codes.md; common practice). */
 export const PRECONDITION_TIMER_FRACTION = 1 / 8;
 
 /** No progress in voltage or charge for 30 min counts as a stall (common practice: long enough

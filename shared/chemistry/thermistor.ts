@@ -8,7 +8,7 @@
  * - Steinhart-Hart: 1/T = A + B ln R + C (ln R)^3 (J. S. Steinhart and S. R. Hart,
  *   "Calibration curves for thermistors", Deep Sea Research 15 (1968) 497-503).
  *
- * Wiring (PROTOCOL section 2): `pullupOhm` = fixed resistor from the ADC reference to the
+ * Wiring (docs/profile.md): `pullupOhm` = fixed resistor from the ADC reference to the
  * sense node, NTC from the node to ground; `pulldownOhm` = fixed resistor to ground, NTC on
  * top; neither = the reading is already in ohms. The ADC is taken as ratiometric with
  * `adcMax` counts at the reference voltage (common practice for a divider fed from the

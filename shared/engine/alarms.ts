@@ -1,5 +1,5 @@
 /**
- * Alarm bookkeeping (PROTOCOL section 3): each code has a level, a raise delay and a clear
+ * Alarm bookkeeping (docs/codes.md): each code has a level, a raise delay and a clear
  * delay. A condition must hold for its raise delay of sample time before the alarm is raised,
  * once per episode; the clear condition (with hysteresis, decided by the caller) must hold for
  * the clear delay before `alarm-clear`. The engine decides the conditions; this only debounces.
@@ -13,7 +13,7 @@ interface AlarmRule {
 }
 
 /**
- * Levels from PROTOCOL section 3: critical = someone must act now. A fading source
+ * Levels from docs/codes.md: critical = someone must act now. A fading source
  * (input-low) and a lost line (silence) are warnings. Delays: 3 s filters a noisy reading of a
  * sensor (common practice); pins and timers need none; input-low waits 10 s so a passing cloud
  * does not raise it.
@@ -29,6 +29,11 @@ export const ALARM_RULES: Readonly<Record<AlarmCode, AlarmRule>> = {
   silence: { level: 'warn', raiseAfterS: 0, clearAfterS: 0 },
   'fault-pin': { level: 'critical', raiseAfterS: 0, clearAfterS: 3 },
   'reverse-current': { level: 'warn', raiseAfterS: 5, clearAfterS: 5 },
+  // A blind temperature sensor while charging: critical, after the same 3 s noise filter as overtemp.
+  'sensor-fault': { level: 'critical', raiseAfterS: 3, clearAfterS: 10 },
+  // Raised as a warning on repeated contact evidence, escalated to critical when it keeps
+  // repeating within minutes (see CONTACT_* in run-engine); cleared after a quiet window.
+  contact: { level: 'warn', raiseAfterS: 0, clearAfterS: 0 },
 };
 
 export const ALARM_INDEX: Readonly<Record<AlarmCode, number>> = Object.fromEntries(
@@ -66,6 +71,16 @@ export class AlarmBook {
     }
     if (this.clearSince[i] !== this.clearSince[i]) this.clearSince[i] = t;
     return t - this.clearSince[i] >= this.clearAfter[i] ? CLEAR : KEEP;
+  }
+
+  /** The raised alarm i, or null. */
+  get(i: number): AlarmEvent | null {
+    return this.active[i];
+  }
+
+  /** The raising condition of alarm i holds and waits out its raise delay. */
+  isPending(i: number): boolean {
+    return this.active[i] === null && this.raiseSince[i] === this.raiseSince[i];
   }
 
   isActive(i: number): boolean {

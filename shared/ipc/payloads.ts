@@ -54,6 +54,13 @@ export interface RunRow {
   wh: number;
   lines: number;
   rejected: number;
+  /** The board under test, who ran it, its firmware, its burn-in batch (null when unknown). */
+  boardId?: string | null;
+  operator?: string | null;
+  firmware?: string | null;
+  batchId?: string | null;
+  /** The checks' verdict, when the run was judged. */
+  verdict?: 'pass' | 'fail' | 'incomplete' | null;
 }
 
 /** Canonical sample columns that overview queries can bucket. */

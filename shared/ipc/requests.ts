@@ -1,7 +1,18 @@
 /** Runtime-validated request schemas (zod). Anything not matching is refused with the reason. */
 import { z } from 'zod';
+import { connectableSourceSchema, stationSchema } from '../sources/schemas';
 
+/**
+ * A station that exists: besides the ids a person gives, a remote station is
+ * `<bench>/<station>` and a recorded port may carry its path (`serial:/dev/ttyUSB0`).
+ */
 const stationId = z
+  .string()
+  .min(1)
+  .max(130)
+  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only');
+/** The id of a new station added from the Connect view. */
+const newStationId = z
   .string()
   .min(1)
   .max(64)
@@ -12,42 +23,9 @@ const seriesField = z.enum(['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA']);
 /** Profile JSON is validated by the chemistry layer, which names the bad key. */
 const profileJson = z.unknown();
 
-const serialSource = z
-  .object({
-    kind: z.literal('serial'),
-    path: z.string().min(1).max(512),
-    baudRate: z.number().int().min(50).max(4_000_000),
-    dataBits: z.union([z.literal(5), z.literal(6), z.literal(7), z.literal(8)]).optional(),
-    parity: z.enum(['none', 'even', 'odd']).optional(),
-    stopBits: z.union([z.literal(1), z.literal(2)]).optional(),
-    match: z
-      .object({
-        serialNumber: z.string().max(128).optional(),
-        vendorId: z.string().max(16).optional(),
-        productId: z.string().max(16).optional(),
-      })
-      .strict()
-      .optional(),
-  })
-  .strict();
-
-const simulatorSource = z
-  .object({
-    kind: z.literal('simulator'),
-    scenario: z.string().min(1).max(64),
-    speedup: z.number().positive().max(10_000).optional(),
-    shape: z.enum(['kv', 'csv', 'json']).optional(),
-    sampleIntervalS: z.number().positive().max(3600).optional(),
-  })
-  .strict();
-
-export const stationConfigSchema = z
-  .object({
-    id: stationId,
-    label: z.string().max(120).optional(),
-    source: z.discriminatedUnion('kind', [serialSource, simulatorSource]),
-    profile: profileJson,
-  })
+/** A station as the Connect view asks for it: the kinds a person can pick (shared/sources). */
+export const stationConfigSchema = stationSchema
+  .extend({ id: newStationId, source: connectableSourceSchema })
   .strict();
 
 const window = { fromT: z.number().min(0), toT: z.number().min(0) };

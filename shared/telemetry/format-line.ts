@@ -1,5 +1,5 @@
 /**
- * Prints telemetry lines in the three shapes of PROTOCOL section 1. This is the one
+ * Prints telemetry lines in the three shapes of docs/telemetry.md. This is the one
  * implementation of printing them: the simulator and the tests use it, and the parser
  * reads back exactly what it prints.
  */

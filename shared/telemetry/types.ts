@@ -1,6 +1,6 @@
 /**
  * The typed contract of the telemetry layer: what one received line becomes.
- * Pure types only; see PROTOCOL section 1 in the project's DEVELOPERS.md.
+ * Pure types only; see docs/telemetry.md.
  */
 
 export type SourceKind = 'panel' | 'adapter' | 'none';
@@ -41,7 +41,8 @@ export type RejectReason =
   | 'bad-value' // a canonical field whose value is not a number (or 0/1, or a source name)
   | 'bad-unit' // a unit suffix that does not fit the field (e.g. `ibat=3V`)
   | 'csv-width' // CSV row whose cell count differs from the header
-  | 'csv-no-header'; // bare comma-separated numbers before any header line
+  | 'csv-no-header' // bare comma-separated numbers before any header line
+  | 'implausible'; // a physically impossible value, or one not finite after unit conversion
 
 /** How one device key maps onto a canonical field. */
 export interface FieldMapping {
@@ -57,7 +58,7 @@ export interface FieldMapping {
 /** Profile `fields`: canonical field -> device key (and unit). */
 export type FieldMap = Partial<Record<CanonicalField, FieldMapping>>;
 
-/** Thermistor model of a profile (PROTOCOL section 2). */
+/** Thermistor model of a profile (docs/profile.md). */
 export type ThermistorModel =
   | {
       model: 'beta';
@@ -91,5 +92,5 @@ export type LineResult =
   | { kind: 'blank' }
   | { kind: 'rejected'; reason: RejectReason; detail: string };
 
-/** Lines are at most this many bytes (PROTOCOL section 1). */
+/** Lines are at most this many bytes (docs/telemetry.md). */
 export const MAX_LINE_BYTES = 4096;

@@ -12,6 +12,8 @@ const BENCHES = [
   'replay-bench.ts',
   'record-bench.ts',
   'chart-bench.ts',
+  'firmware-size-bench.ts',
+  'unplug-bench.ts',
   'sweep-bench.ts',
 ];
 const extra = process.argv.slice(2);

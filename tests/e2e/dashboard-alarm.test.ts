@@ -42,7 +42,7 @@ test('overtemp in the Bench and Rack views, acknowledged', { timeout: 240_000 },
 
   await t.test('the Bench view lists overtemp with its level in words', async () => {
     const head = (await alarm.locator('.alarm-head').textContent()) ?? '';
-    // PROTOCOL section 3: overtemp = temperature above the charge window while charging.
+    // docs/codes.md: overtemp = temperature above the charge window while charging.
     assert.match(head, /overtemp/);
     assert.match(head, /Critical|Warning/);
     assert.ok(

@@ -88,7 +88,7 @@ test('Line feed of a serial station on a pty pair', { timeout: 180_000 }, async 
   await page.goto(pageUrl(serve, 'feed'));
   await page.locator('#feed-station option').first().waitFor({ state: 'attached', timeout: 15_000 });
 
-  // PROTOCOL section 1: key=value samples, a `#` firmware message, and a value that is not a number.
+  // docs/telemetry.md: key=value samples, a `#` firmware message, and a value that is not a number.
   write('# feed-test firmware 0.1 (demo)');
   for (let i = 0; i < 5; i++)
     write(`t=${i} vbat=${(11.1 + i * 0.01).toFixed(3)} ibat=0.98 temp=25.${i} vin=15.0 iin=0.8`);

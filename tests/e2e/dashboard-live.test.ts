@@ -30,7 +30,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
   await t.test('the Bench view shows the station reach constant current (cc)', async () => {
     await page.locator(`#view-rack .tile[data-station="${stationId}"]`).click();
     await page.locator('#view-bench').waitFor({ state: 'visible' });
-    // Phase code `cc` (PROTOCOL section 3) shown in words.
+    // Phase code `cc` (docs/codes.md) shown in words.
     const word = page.locator('#view-bench .phase-word[data-phase="cc"]');
     await word.waitFor({ timeout: 60_000 });
     assert.equal(await word.textContent(), 'Constant current');
@@ -122,7 +122,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     const title = page.locator('#view-diagnosis .diag-title');
     await title.waitFor({ timeout: 20_000 });
     assert.equal(await title.textContent(), `Diagnosis of station ${stationId} at ${marked} of the run`);
-    // A healthy charge may have no cause to name; any cause named is one of PROTOCOL section 3's
+    // A healthy charge may have no cause to name; any cause named is one of docs/codes.md's
     // codes, with its confidence as a number, not only a bar.
     const causes = page.locator('#view-diagnosis .cause');
     for (let i = 0; i < (await causes.count()); i++) {
@@ -207,7 +207,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     assert.ok(rows.length > 10, `CSV rows: ${rows.length}`);
     assert.ok('vbat (V)' in rows[0] && 't (s)' in rows[0], `CSV columns: ${Object.keys(rows[0]).join(', ')}`);
     // A 3S Li-ion pack between precondition and full charge: 3 x 2.5..4.3 V/cell
-    // (REFERENCES section 1: regulation 4.20 V/cell, precondition below about 3.0 V/cell).
+    // (Battery University BU-409: regulation 4.20 V/cell; ElectroDragon wiki: precondition below about 3.0 V/cell).
     const vbat = rows.map((r) => Number(r['vbat (V)'])).filter(Number.isFinite);
     assert.ok(
       vbat.length > 10 && vbat.every((v) => v > 7.5 && v < 12.9),

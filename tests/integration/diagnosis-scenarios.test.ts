@@ -70,7 +70,7 @@ test('loose-connection scenario: connection first', () => {
 });
 
 test('overvoltage-drift scenario: overvoltage first, past the 4.25 V/cell limit', () => {
-  // 4.25 V/cell upper-limit charge voltage (REFERENCES §1, TI E2E JEITA note).
+  // 4.25 V/cell upper-limit charge voltage (TI E2E design note "JEITA Battery Temperature Standard").
   const d = diagnoseScenario('overvoltage-drift');
   assertFirst(d, 'overvoltage');
   assert.match(d.causes[0].evidence.join(' '), /4\.25 V\/cell upper limit/);

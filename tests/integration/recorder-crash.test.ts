@@ -47,7 +47,7 @@ const killed = (c: ChildProcess) =>
     c.exitCode !== null || c.signalCode !== null ? res() : c.once('exit', () => res()),
   );
 
-/** An invented CC line (PROTOCOL section 1 key=value shape) for a boat's 4S LiFePO4 house battery. */
+/** An invented CC line (docs/telemetry.md key=value shape) for a boat's 4S LiFePO4 house battery. */
 const line = (i: number) =>
   `t=${(i * 0.05).toFixed(2)} vbat=${(13.2 + i * 1e-4).toFixed(4)} ibat=5.000 temp=24.0`;
 

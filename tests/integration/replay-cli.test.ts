@@ -1,6 +1,6 @@
 /**
  * `taperline replay` through the shipped command (bin/taperline.cjs -> dist/cli.cjs, built by
- * `npm test` first): NDJSON events per PROTOCOL section 4, standard input, pacing, exit codes,
+ * `npm test` first): NDJSON events per docs/cli.md, standard input, pacing, exit codes,
  * and malformed lines counted without stopping the run.
  */
 import { test } from 'node:test';
@@ -40,14 +40,24 @@ const ndjson = (stdout: string): Record[] =>
     .split('\n')
     .map((line) => JSON.parse(line) as Record);
 
-test('--events prints one JSON event a line and the summary last (PROTOCOL section 4)', () => {
+test('--events prints one JSON event a line and the summary last (docs/cli.md)', () => {
   const { log, profile } = writeScenario('damaged-cell');
   const r = taperline(['replay', log, '--profile', profile, '--events']);
   assert.equal(r.status, 0, r.stderr);
   const records = ndjson(r.stdout);
   const summary = records.at(-1)!;
   assert.equal(summary.type, 'summary');
-  assert.deepEqual(Object.keys(summary), ['type', 'durationS', 'ah', 'wh', 'phaseS', 'lines', 'rejected']);
+  assert.deepEqual(Object.keys(summary), [
+    'type',
+    'durationS',
+    'ah',
+    'wh',
+    'phaseS',
+    'lines',
+    'rejected',
+    'timeGlitches',
+    'clockResets',
+  ]);
   assert.ok(records.slice(0, -1).every((e) => ['phase', 'alarm', 'alarm-clear', 'gap'].includes(e.type)));
   const phases = records.filter((e) => e.type === 'phase').map((e) => e.phase);
   assert.equal(phases[0], 'precondition');

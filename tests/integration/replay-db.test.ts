@@ -1,6 +1,6 @@
 /**
  * A run recorded live (the simulated charger as a station, into a real SQLite file) replays
- * from the database exactly as the same lines replay from a file (PROTOCOL section 4:
+ * from the database exactly as the same lines replay from a file (docs/cli.md:
  * `replay` and `diagnose` take a recording database with --run ID|latest).
  */
 import { test } from 'node:test';

@@ -89,7 +89,7 @@ test('bench-liion-3s: cc -> cv -> done, no critical alarm, 85-95 % efficiency', 
   assert.equal(o.state.phase, 'done');
   const eff = o.state.metrics.efficiency;
   assert.ok(eff !== null && eff > 0.85 && eff < 0.95, `efficiency ${eff}`);
-  // From 30 % of 2.5 Ah to about full: some 1.7 Ah delivered (coulomb counting: Ah = integral of I dt / 3600).
+  // From 30 % of 2.5 Ah to about full: some 1.7 Ah delivered (coulomb counting, Ah = (1/3600)·∫I dt: MathWorks "SOC Estimator (Coulomb Counting)").
   assert.ok(o.state.metrics.ah > 1.6 && o.state.metrics.ah < 1.85, `${o.state.metrics.ah} Ah`);
 });
 
@@ -118,7 +118,7 @@ test('lead-acid-float: bulk, absorption, then float (done) at the compensated fl
   checkExpected('lead-acid-float', o);
   const last = o.samples[o.samples.length - 1];
   assert.ok(last.vbatV !== undefined && last.tempC !== undefined);
-  // Battery University BU-403: float 2.30 V/cell at 25 C, -3 mV/K/cell.
+  // Float 2.30 V/cell at 25 C, -3 mV/K/cell: Battery University BU-403 "Charging Lead Acid".
   const floatV = 6 * (2.3 - 0.003 * (last.tempC - 25));
   assert.ok(Math.abs(last.vbatV - floatV) < 0.05, `float ${last.vbatV} V vs ${floatV.toFixed(3)} V`);
 });
@@ -183,5 +183,5 @@ test('every scenario reads the same in csv and json shapes', () => {
       );
     }
   }
-  assert.equal(SCENARIO_NAMES.length, 14);
+  assert.equal(SCENARIO_NAMES.length, 19);
 });

@@ -16,6 +16,7 @@ import type { FeedLine } from '@shared/ipc/payloads';
 import type { EngineEvent } from '@shared/engine/types';
 import type { SampleBatch } from '@shared/ipc/pushes';
 import { startBackend, type Backend } from '../../main/app/backend';
+import { stationsFromOptions } from '../../main/app/station-options';
 import { startServer, type RunningServer } from '../../main/server';
 import { realLibraries } from '../../main/app/libraries';
 import { ApiClient, openPtyPair, rawGet, TRAIL_CAMERA_PROFILE, type PtyPair } from './server-harness';
@@ -68,7 +69,7 @@ before(async () => {
   writeFileSync(profilePath, JSON.stringify(TRAIL_CAMERA_PROFILE));
   backend = await startBackend({
     dbPath,
-    serial: { path: pty.stationPath, baudRate: 115200, profilePath },
+    stations: stationsFromOptions({ ports: [pty.stationPath], profilePath, simulate: [] }),
   });
   server = await startServer({
     port: 0,
@@ -148,7 +149,7 @@ test('the live station and its recorded run get the same diagnosis of the fault'
   const recordedDiagnosis = (recorded as { result: DiagnosisReply }).result;
   for (const diagnosis of [liveDiagnosis, recordedDiagnosis]) {
     assert.ok(diagnosis.causes.length > 0, `a fault has causes: ${JSON.stringify(diagnosis)}`);
-    // PROTOCOL section 3: causes sorted by confidence, highest first.
+    // docs/codes.md: causes sorted by confidence, highest first.
     for (let i = 1; i < diagnosis.causes.length; i++)
       assert.ok(diagnosis.causes[i - 1].confidence >= diagnosis.causes[i].confidence);
   }

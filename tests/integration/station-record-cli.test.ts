@@ -47,7 +47,7 @@ async function writeLines(path: string, lines: string[]): Promise<void> {
   await new Promise<void>((res) => port.close(() => res()));
 }
 
-// Invented: a fence monitor's 2S Li-ion pack in CC (PROTOCOL section 1 key=value shape).
+// Invented: a fence monitor's 2S Li-ion pack in CC (docs/telemetry.md key=value shape).
 const PROFILE = { name: 'fence monitor 2S', chemistry: 'li-ion', cells: 2, capacityAh: 3, chargeCurrentA: 1 };
 const manyPorts = (n: number) =>
   Array.from({ length: n }, (_, i) => ['--port', join(tmpdir(), `taperline-no-port-${i}`)]).flat();

@@ -15,7 +15,7 @@ import { createStationManager, MAX_STATIONS, StationConfigError } from '../../ma
 import type { StationManagerEvents } from '../../main/station/types';
 import { ptyPair, until, type PtyPair } from './serial-pty';
 
-// Invented demo scenario: a garden sensor's 2S Li-ion pack (PROTOCOL section 2 keys).
+// Invented demo scenario: a garden sensor's 2S Li-ion pack (docs/profile.md keys).
 const PROFILE = {
   name: 'garden sensor 2S',
   chemistry: 'li-ion',
@@ -25,7 +25,7 @@ const PROFILE = {
   terminationA: 0.1,
 };
 
-/** An invented CC line in the key=value shape of PROTOCOL section 1. */
+/** An invented CC line in the key=value shape of docs/telemetry.md. */
 const ccLine = (t: number) =>
   `t=${t} vbat=${(7.4 + t * 0.001).toFixed(3)} ibat=1.000 temp=25.0 vin=12.0 iin=0.7 chg=1 flt=0`;
 
@@ -157,7 +157,7 @@ test('bad input on the wire (random bytes, wrong baud rate noise, a 10 MB burst)
     assert.equal(st.state.last?.t, 1, 'both good lines were accepted');
     assert.ok(st.rejected >= 3, `rejected ${st.rejected}`);
     const reasons = new Set(lines.filter((l) => l.line.kind === 'rejected').map((l) => l.line.reason));
-    // PROTOCOL section 1 reject reasons: the cut burst, and the noise as not-text.
+    // docs/telemetry.md reject reasons: the cut burst, and the noise as not-text.
     assert.ok(reasons.has('line-too-long'));
     assert.ok(reasons.has('not-text'));
     await manager.close();

@@ -76,6 +76,6 @@ test('every chemistry orders its voltages precondition < float < regulation < ov
     assert.ok(d.terminationC < d.chargeCurrentC, name);
     assert.ok(d.tempWindowC[0] < d.tempWindowC[1], name);
   }
-  // PROTOCOL section 3: silence default 10 s.
+  // docs/codes.md: silence default 10 s.
   assert.equal(DEFAULT_SILENCE_S, 10);
 });

@@ -1,6 +1,6 @@
 /**
  * Diagnosis cause modules on small synthetic histories (invented data, one pattern per cause),
- * with the published thresholds of REFERENCES named beside the assertions that rest on them.
+ * with the published source of each threshold named beside the assertions that rest on them.
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
@@ -91,7 +91,7 @@ test('a clean charge reports no cause above 0.3 and diagnoses the end of the run
 
 test('damaged-cell: precondition that does not end, voltage that does not rise', () => {
   const profile = liion3s({ preconditionTimeoutMin: 30 });
-  // Precondition threshold ~3.0 V/cell (REFERENCES §1: Junlee blog, ElectroDragon wiki "< 3 V, pre-charge 0.1C").
+  // Precondition threshold ~3.0 V/cell (Junlee blog "What are the stages of charging a lithium-ion battery", ElectroDragon wiki "< 3 V, pre-charge 0.1C").
   assert.equal(profile.preconditionVPerCell, 3.0);
   const samples = history(1800, 2, () => ({ vbatV: 5.71, ibatA: 0.2, tempC: 24, vinV: 19, iinA: 0.1 }));
   const events = [phase(0, 'precondition'), critical(1800, 'precondition-timeout'), phase(1800, 'fault')];
@@ -104,8 +104,30 @@ test('damaged-cell: precondition that does not end, voltage that does not rise',
   assert.match(d.causes[0].next.join(' '), /2\.5 V/);
 });
 
+test('damaged-cell: a pack hovering at the threshold until the precondition timer expired ranks first', () => {
+  // The engine holds precondition until 1 % above the ~3.0 V/cell threshold (Junlee blog;
+  // ElectroDragon wiki "Lithium Battery Charge"); this invented pack rises 8.40 -> 9.05 V (3S) at
+  // C/10 and crosses 9.00 V but never clears 9.09 V in the 30 min limit: the timer expires.
+  const profile = liion3s({ preconditionTimeoutMin: 30 });
+  const samples = history(1800, 2, (t) => ({
+    vbatV: 8.4 + (0.65 * t) / 1800,
+    ibatA: 0.25,
+    tempC: 24,
+    vinV: 19,
+  }));
+  const events = [phase(0, 'precondition'), critical(1800, 'precondition-timeout'), phase(1800, 'fault')];
+  const d = diagnose({ profile, samples, events });
+  assertTrueCauseFirst(d, 'damaged-cell');
+  assert.ok(d.causes[0].confidence >= 0.5, `damaged-cell at ${d.causes[0].confidence}`);
+  assert.ok(!d.causes.some((c) => c.code === 'unknown'), 'the fault is explained');
+  assert.match(
+    d.causes[0].evidence.join(' | '),
+    /the precondition timer expired: the pack stayed in precondition for 30 min/,
+  );
+});
+
 test('damaged-cell: a pack above 3.0 V/cell is not held in precondition', () => {
-  // 3.1 V/cell is above the ~3.0 V/cell precondition threshold (REFERENCES §1, Junlee / ElectroDragon).
+  // 3.1 V/cell is above the ~3.0 V/cell precondition threshold (Junlee blog; ElectroDragon wiki "Lithium Battery Charge").
   const samples = history(1800, 2, () => ({ vbatV: 9.3, ibatA: 0.2, tempC: 24 }));
   const d = diagnose({ profile: liion3s({ preconditionTimeoutMin: 30 }), samples, events: [phase(0, 'cc')] });
   assert.ok(conf(d, 'damaged-cell') < 0.3);
@@ -142,7 +164,7 @@ test('weak-source: a panel at its set point that cannot give the set current, en
 
 test('overtemperature: a pack that heats past the 45 °C window top under charge', () => {
   const profile = liion3s();
-  // Charge window top 45 °C (REFERENCES §1: TI E2E JEITA note, pre-JEITA window 0–45 °C).
+  // Charge window top 45 °C (TI E2E design note "JEITA Battery Temperature Standard", pre-JEITA window 0–45 °C).
   assert.equal(profile.tempWindowC[1], 45);
   const samples = history(3600, 5, (t) => ({
     vbatV: 11.2 + t / 5000,
@@ -158,7 +180,7 @@ test('overtemperature: a pack that heats past the 45 °C window top under charge
 });
 
 test('overtemperature: a peak of 44 °C, under the 45 °C window top, is not a cause', () => {
-  // 45 °C top of the standard charge window (REFERENCES §1, TI E2E JEITA note).
+  // 45 °C top of the standard charge window (TI E2E design note "JEITA Battery Temperature Standard").
   const samples = history(3600, 5, (t) => ({
     vbatV: 11.2 + t / 5000,
     ibatA: 1,
@@ -219,7 +241,7 @@ test('timer-expired: a pack bigger than the profile says runs out the timer at f
 
 test('overvoltage: CV regulation drifting above the 4.25 V/cell upper limit', () => {
   const profile = liion3s();
-  // Li-ion CV 4.20 V/cell ±50 mV (REFERENCES §1, BU-409); upper-limit charge voltage 4.25 V/cell (TI E2E JEITA note).
+  // Li-ion CV 4.20 V/cell ±50 mV (Battery University BU-409 "Charging Lithium-ion"); upper-limit charge voltage 4.25 V/cell (TI E2E JEITA note).
   assert.equal(profile.regulationVPerCell, 4.2);
   assert.equal(profile.overvoltageVPerCell, 4.25);
   const ccEnd = 3600;
@@ -241,7 +263,7 @@ test('overvoltage: CV regulation drifting above the 4.25 V/cell upper limit', ()
 });
 
 test('overvoltage: regulation within 4.20 V/cell ± 50 mV is not a cause', () => {
-  // 4.24 V/cell sits inside BU-409's 4.20 V/cell ± 50 mV (REFERENCES §1).
+  // 4.24 V/cell sits inside BU-409's 4.20 V/cell ± 50 mV ("Charging Lithium-ion").
   const samples = history(7200, 5, (t) => ({
     vbatV: t < 3600 ? 11.2 + (1.52 * t) / 3600 : 12.72,
     ibatA: t < 3600 ? 1 : 0.4,
@@ -251,7 +273,7 @@ test('overvoltage: regulation within 4.20 V/cell ± 50 mV is not a cause', () =>
 });
 
 test('overvoltage: a pack held at 4.27 V/cell, above the 4.25 V/cell JEITA upper limit, is a cause', () => {
-  // 4.27 V/cell > 4.25 V/cell upper-limit charge voltage (REFERENCES §1, TI E2E JEITA note).
+  // 4.27 V/cell > 4.25 V/cell upper-limit charge voltage (TI E2E design note "JEITA Battery Temperature Standard").
   const samples = history(7200, 5, (t) => ({
     vbatV: t < 3600 ? 11.2 + (1.61 * t) / 3600 : 12.81,
     ibatA: t < 3600 ? 1 : 0.4,

@@ -66,8 +66,8 @@ test('upper bound and typical interval', () => {
   assert.equal(typicalInterval(samples, samples.length), 1, 'a gap does not change the median interval');
 });
 
-test('delivered charge by the trapezoid rule (REFERENCES §9 worked example: 1.375 Ah)', () => {
-  // I = [0, 1, 2, 2, 1] A at t = 0…3600 s every 900 s: trapezoid 4 950 C = 1.375 Ah (REFERENCES §9, derived).
+test('delivered charge by the trapezoid rule (worked example, derived: 1.375 Ah)', () => {
+  // I = [0, 1, 2, 2, 1] A at t = 0…3600 s every 900 s: trapezoid 4 950 C = 1.375 Ah (trapezoid rule, derived).
   const samples = [0, 1, 2, 2, 1].map((a, i) => at(i * 900, { ibatA: a }));
   assert.ok(Math.abs(deliveredAh(samples, samples.length, 1000) - 1.375) < 1e-12);
   assert.equal(

@@ -1,5 +1,5 @@
 /**
- * Every alarm code of PROTOCOL section 3 on synthetic sequences (invented data): raised with its
+ * Every alarm code of docs/codes.md on synthetic sequences (invented data): raised with its
  * level once per episode, debounced, cleared when the condition is gone, with numbers in the message.
  */
 import { test } from 'node:test';
@@ -22,9 +22,18 @@ const only = (events: EngineEvent[], code: string): AlarmEvent => {
   return raised[0];
 };
 
-test('levels: critical only where someone must act (PROTOCOL section 3)', () => {
+test('levels: critical only where someone must act (docs/codes.md)', () => {
   const critical = ALARM_CODES.filter((c) => ALARM_RULES[c].level === 'critical').sort();
-  assert.deepEqual(critical, ['fault-pin', 'overtemp', 'overvoltage', 'precondition-timeout', 'timer']);
+  assert.deepEqual(critical, [
+    'fault-pin',
+    'overtemp',
+    'overvoltage',
+    'precondition-timeout',
+    'sensor-fault',
+    'timer',
+  ]);
+  // contact is raised as a warning and escalated only when it keeps repeating.
+  assert.equal(ALARM_RULES.contact.level, 'warn');
   assert.equal(ALARM_RULES['input-low'].level, 'warn');
   assert.equal(ALARM_RULES.undertemp.level, 'warn');
   assert.equal(ALARM_RULES['reverse-current'].level, 'warn');
@@ -94,7 +103,7 @@ test('overvoltage above 4.25 V/cell is critical and clears below the limit', () 
 });
 
 test('a pack stuck below the precondition threshold: precondition-timeout (critical) and fault', () => {
-  // Junlee / ElectroDragon: precondition below ≈ 3.0 V/cell at ≤ C/10. PROTOCOL: timeout 30 min without a timer.
+  // Junlee / ElectroDragon: precondition below ≈ 3.0 V/cell at ≤ C/10. docs/codes.md: timeout 30 min without a timer.
   const engine = createRunEngine(li());
   const events = pushAll(
     engine,
@@ -116,7 +125,7 @@ test('a pack stuck below the precondition threshold: precondition-timeout (criti
   assert.equal(engine.state().phase, 'fault');
 });
 
-test('with a safety timer the precondition timeout is timerMin/8 (PROTOCOL section 3)', () => {
+test('with a safety timer the precondition timeout is timerMin/8 (docs/codes.md)', () => {
   const engine = createRunEngine(li({ timerMin: 80 }));
   const a = only(pushAll(engine, steady(0, 1200, 1, { vbatV: 7.5, ibatA: 0.25 })), 'precondition-timeout');
   assert.equal(a.t, 600); // 80 min / 8 = 10 min
@@ -200,7 +209,7 @@ test('input-low: source at the set point or under the pack is a warning; missing
 });
 
 test('reverse-current below -C/50 with a source present is a warning; without a source it is not raised', () => {
-  // PROTOCOL section 3: ibat below −C/50 = −0.05 A for 2.5 Ah.
+  // docs/codes.md: ibat below −C/50 = −0.05 A for 2.5 Ah.
   const engine = createRunEngine(li());
   const a = only(
     pushAll(engine, steady(0, 60, 1, { vbatV: 11.4, ibatA: -0.08, src: 'adapter', vinV: 15 })),
@@ -233,17 +242,26 @@ test('silence: raised once by tick after silenceS, cleared by the next sample', 
   assert.equal(clears(back, 'silence').length, 1);
 });
 
-test('silence in a replayed file (no ticks): a hole in the data raises and clears it', () => {
+test('silence in a replayed file (no ticks): a hole in the data is a gap; it raises and clears silence', () => {
   const engine = createRunEngine(li());
   pushAll(engine, steady(0, 10, 1, { vbatV: 11.4, ibatA: 1 }));
+  const ahBefore = engine.summary().ah;
   const events = engine.push({ t: 70, rxS: 70, vbatV: 11.4, ibatA: 1, extra: {} });
   assert.deepEqual(
     events.map((e) => [e.type, e.t]),
     [
       ['alarm', 19],
+      ['gap', 9],
       ['alarm-clear', 70],
     ],
   );
+  const gap = events.find((e) => e.type === 'gap');
+  assert.equal(gap?.type === 'gap' && gap.durationS, 61);
+  // Nothing is integrated across the 61 s gap: no charge, no phase time.
+  assert.equal(engine.summary().ah, ahBefore);
+  assert.equal(engine.summary().durationS, 70);
+  const phaseS = Object.values(engine.summary().phaseS).reduce((a, b) => a + (b ?? 0), 0);
+  assert.equal(phaseS, 9);
 });
 
 test('a reported gap is recorded once and is not also a silence or a stall; its stretch is not integrated', () => {
@@ -255,7 +273,7 @@ test('a reported gap is recorded once and is not also a silence or a stall; its 
   assert.deepEqual(engine.gap(99.5, null, 'port unplugged'), []);
   for (let t = 100; t < 1000; t += 1) assert.deepEqual(engine.tick(t), []);
   const closed = engine.gap(99.5, 1000, 'port back');
-  assert.deepEqual(closed, [{ type: 'gap', t: 99.5, endT: 1000, reason: 'port back' }]);
+  assert.deepEqual(closed, [{ type: 'gap', t: 99.5, endT: 1000, durationS: 900.5, reason: 'port back' }]);
   assert.deepEqual(engine.gap(99.5, 1000, 'port back'), []);
   const after = pushAll(engine, steady(1000, 60, 1, { vbatV: 11.4, ibatA: 1 }));
   assert.deepEqual(after, []);

@@ -114,7 +114,7 @@ test('a solar-limited charge below the set current and below regulation stays cc
     steady(0, 3600, 1, { vbatV: 11.4, ibatA: 0.35, vinV: 14.5, iinA: 0.3, src: 'panel' }),
   );
   assert.deepEqual(phasesOf(events), ['cc']);
-  // At the set point the source cannot supply more: input-low, a warning only (PROTOCOL section 3).
+  // At the set point the source cannot supply more: input-low, a warning only (docs/codes.md).
   const alarms = alarmsOf(events);
   assert.deepEqual(
     alarms.map((a) => [a.code, a.level]),

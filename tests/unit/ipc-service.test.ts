@@ -132,7 +132,7 @@ test('profile.preview reads draft lines through the real pipeline', async () => 
       lines: ['t=1 vb=8214 ibat=598mA temp=27.1', 'garbage ###'],
     })) as { profile: { ok: boolean }; lines: { result: { kind: string }; sample: TimedSample | null }[] };
     assert.equal(result.profile.ok, true);
-    // PROTOCOL section 1: unit suffixes and the profile's unit for an unsuffixed key.
+    // docs/telemetry.md: unit suffixes and the profile's unit for an unsuffixed key.
     assert.equal(result.lines[0].sample?.vbatV, 8.214);
     assert.equal(result.lines[0].sample?.ibatA, 0.598);
     assert.equal(result.lines[1].result.kind, 'rejected');

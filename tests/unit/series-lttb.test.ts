@@ -4,7 +4,7 @@ import fc from 'fast-check';
 import { LTTB } from 'downsample';
 import { lttb, lttbIndices } from '@shared/series/lttb';
 
-// REFERENCES section 7 check vector (downsample-lttb README; downsample-lttb-ts README).
+// Check vector of the downsample-lttb and downsample-lttb-ts READMEs (LTTB: S. Steinarsson, MSc thesis, University of Iceland, 2013).
 const VECTOR: [number, number][] = [
   [1, 2],
   [2, 2],
@@ -22,7 +22,7 @@ const VECTOR: [number, number][] = [
 const points = VECTOR.map(([x, y]) => ({ x, y }));
 const asPairs = (ps: { x: number; y: number }[]) => ps.map((p) => [p.x, p.y]);
 
-test('threshold 3 -> [[1,2],[5,6],[12,2]] (REFERENCES 7, downsample-lttb README)', () => {
+test('threshold 3 -> [[1,2],[5,6],[12,2]] (downsample-lttb README)', () => {
   assert.deepEqual(asPairs(lttb(points, 3)), [
     [1, 2],
     [5, 6],
@@ -30,7 +30,7 @@ test('threshold 3 -> [[1,2],[5,6],[12,2]] (REFERENCES 7, downsample-lttb README)
   ]);
 });
 
-test('threshold 4 -> [[1,2],[5,6],[7,3],[12,2]] (REFERENCES 7, computed with the reference algorithm)', () => {
+test('threshold 4 -> [[1,2],[5,6],[7,3],[12,2]] (derived: computed with the reference algorithm)', () => {
   assert.deepEqual(asPairs(lttb(points, 4)), [
     [1, 2],
     [5, 6],
@@ -39,7 +39,7 @@ test('threshold 4 -> [[1,2],[5,6],[7,3],[12,2]] (REFERENCES 7, computed with the
   ]);
 });
 
-test('threshold 5 -> [[1,2],[2,2],[5,6],[11,1],[12,2]] (REFERENCES 7, computed with the reference algorithm)', () => {
+test('threshold 5 -> [[1,2],[2,2],[5,6],[11,1],[12,2]] (derived: computed with the reference algorithm)', () => {
   assert.deepEqual(asPairs(lttb(points, 5)), [
     [1, 2],
     [2, 2],
@@ -49,7 +49,7 @@ test('threshold 5 -> [[1,2],[2,2],[5,6],[11,1],[12,2]] (REFERENCES 7, computed w
   ]);
 });
 
-test('threshold >= n or 0 returns the input unchanged (REFERENCES 7, downsample-lttb-ts edge rule)', () => {
+test('threshold >= n or 0 returns the input unchanged (downsample-lttb-ts source, edge rule)', () => {
   assert.deepEqual(asPairs(lttb(points, 12)), VECTOR);
   assert.deepEqual(asPairs(lttb(points, 100)), VECTOR);
   assert.deepEqual(asPairs(lttb(points, 0)), VECTOR);

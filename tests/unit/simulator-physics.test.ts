@@ -22,43 +22,43 @@ import { createBench } from '../../main/simulator/bench';
 import { getScenario, SCENARIO_NAMES } from '../../main/simulator';
 
 test('Li-ion OCV: full at 4.20 V/cell, near 3.0 V/cell empty', () => {
-  // REFERENCES §1 (BU-409): CV regulation 4.20 V/cell; precondition threshold ~3.0 V/cell.
+  // Battery University BU-409 "Charging Lithium-ion": CV regulation 4.20 V/cell; precondition threshold ~3.0 V/cell (ElectroDragon wiki "Lithium Battery Charge").
   assert.equal(cellOcvV('li-ion', 1), 4.2);
   assert.ok(Math.abs(cellOcvV('li-ion', 0) - 3.0) <= 0.05);
-  // REFERENCES §1 (Zufek, Higherwire): high-voltage variant full at 4.35 V/cell.
+  // Zufek blog "CC/CV charging protocol"; Higherwire "How Much Capacity Do 4.35 Volt Cells Lose at 4.20 Volts?": high-voltage variant full at 4.35 V/cell.
   assert.equal(cellOcvV('li-ion-hv', 1), 4.35);
 });
 
 test('LiFePO4 OCV: flat 3.2-3.3 V plateau, 2.5 V cut-off, under the 3.60 V CV', () => {
-  // REFERENCES §2 (RightBattery "3.2-3.3 V", LFP cell specs nominal 3.2 V, 2.5 V cut-off).
+  // RightBattery "LiPo/LiIon/LiFe Batteries" ("3.2-3.3 V"); AA Portable Power LFP-26650 and Sunland IFR26650PE specs (nominal 3.2 V, 2.5 V cut-off).
   for (let soc = 0.15; soc <= 0.9001; soc += 0.05) {
     const v = cellOcvV('lifepo4', soc);
     assert.ok(v >= 3.2 && v <= 3.35, `OCV ${v} V at SoC ${soc.toFixed(2)} should sit on the plateau`);
   }
   assert.equal(cellOcvV('lifepo4', 0), 2.5);
-  // REFERENCES §2: CV charge voltage 3.60-3.65 V/cell, above any resting voltage.
+  // CV charge voltage 3.60-3.65 V/cell (RightBattery; AA Portable Power LFP-26650 spec), above any resting voltage.
   assert.ok(cellOcvV('lifepo4', 1) < 3.6);
   assert.equal(CHEMISTRY_FIRMWARE.lifepo4.regulationVPerCell, 3.6);
 });
 
 test('lead-acid OCV stays under float, float under absorption', () => {
-  // REFERENCES §3: float 2.25-2.30 V/cell, absorption 2.40 V/cell (BU-403, AGM datasheets);
+  // Float 2.25-2.30 V/cell, absorption 2.40 V/cell (Battery University BU-403; Haze HZB12-200 AGM datasheet);
   // a float charger must sit above the resting voltage of a full battery to hold it full.
   const fw = CHEMISTRY_FIRMWARE['lead-acid'];
   assert.ok(fw.floatVPerCell !== null && fw.floatVPerCell >= 2.25 && fw.floatVPerCell <= 2.3);
   assert.equal(fw.regulationVPerCell, 2.4);
   assert.ok(cellOcvV('lead-acid', 1) < fw.floatVPerCell);
-  // REFERENCES §3: -3 mV/K/cell temperature compensation (BU-403).
+  // -3 mV/K/cell temperature compensation (Battery University BU-403 "Charging Lead Acid").
   assert.equal(fw.tempCompVPerKPerCell, -0.003);
-  // REFERENCES §3 (derived worked check): 12 V float at 35 C = 6 x (2.30 - 0.030) = 13.62 V.
+  // Worked check derived from BU-403's numbers: 12 V float at 35 C = 6 x (2.30 - 0.030) = 13.62 V.
   assert.ok(Math.abs(6 * (2.3 + -0.003 * (35 - 25)) - 13.62) < 1e-9);
 });
 
 test('NiMH OCV stays under the 1.6 V/cell charge limit; -dV threshold is 5 mV/cell', () => {
-  // REFERENCES §4 (cheali-charger docs): 1.6 V/cell safety limit, -dV about 5 mV/cell.
+  // cheali-charger docs "nimh_nicd_charging": 1.6 V/cell safety limit, -dV about 5 mV/cell.
   assert.ok(cellOcvV('nimh', 1) < 1.6);
   assert.equal(CHEMISTRY_FIRMWARE.nimh.minusDeltaVPerCell, 0.005);
-  // REFERENCES §4 (Panasonic): 55 C absolute cutoff for AA cells.
+  // Panasonic "Charge Methods for Nickel Metal Hydride Batteries": 55 C absolute cutoff for AA cells.
   assert.equal(CHEMISTRY_FIRMWARE.nimh.hotCutoffC, 55);
 });
 
@@ -81,12 +81,12 @@ const PANEL_BASE = {
 const PANEL: PanelParams = { ...PANEL_BASE, saturationCurrentA: saturationCurrentForVocA(PANEL_BASE, 21.6) };
 
 test('thermal voltage kT/q is 25.69 mV at 25 C', () => {
-  // REFERENCES §6: V_th = 25.69 mV at 25 C (CODATA constants).
+  // V_th = kT/q = 25.69 mV at 25 C (derived from the CODATA constants).
   assert.ok(Math.abs(thermalVoltageV(25) - 0.02569) < 0.00001);
 });
 
 test('single-diode panel: open-circuit voltage matches pvlib estimate_voc', () => {
-  // REFERENCES §6 (pvlib-python `estimate_voc`): Voc ~ n Ns Vth ln(I_L/I_0 + 1), the ideal
+  // pvlib-python docs, `pvlib.pvsystem.singlediode` / `estimate_voc`: Voc ~ n Ns Vth ln(I_L/I_0 + 1), the ideal
   // estimate without shunt losses.
   const noShunt: PanelParams = { ...PANEL, shuntOhm: 1e12 };
   for (const g of [1000, 600, 200]) {
@@ -95,7 +95,7 @@ test('single-diode panel: open-circuit voltage matches pvlib estimate_voc', () =
     assert.ok(Math.abs(estimateVocV(PANEL, g) - expected) < 1e-9);
     // Without a shunt the full model agrees with the estimate.
     assert.ok(Math.abs(openCircuitV(noShunt, g) - expected) < 1e-6, `no-shunt Voc at ${g} W/m2`);
-    // With one, Voc is lower: at I = 0 the single-diode equation (REFERENCES §6) reduces to
+    // With one, Voc is lower: at I = 0 the single-diode equation (pvlib-python `singlediode` docs) reduces to
     // V = a ln((I_L - V/R_sh)/I_0 + 1) (derived), which the computed Voc must satisfy.
     const voc = openCircuitV(PANEL, g);
     assert.ok(voc < expected);
@@ -111,7 +111,7 @@ test('single-diode panel: open-circuit voltage matches pvlib estimate_voc', () =
 });
 
 test('maximum power point sits near 0.8 Voc, the fractional-Voc MPPT rule', () => {
-  // REFERENCES §6: k_FOCV = 0.8 (common practice); 0.71-0.78 (Esram & Chapman, from memory).
+  // k_FOCV = 0.8 (common practice); 0.71-0.78 (Esram & Chapman, IEEE Trans. Energy Conversion 22(2), 2007; from memory).
   for (const g of [1000, 500, 250]) {
     const voc = openCircuitV(PANEL, g);
     const mpp = maxPowerPoint(PANEL, g);
@@ -169,7 +169,7 @@ test('energy balance: pack energy is less than source energy in every scenario',
 });
 
 test('bench charge: stored charge follows the current delivered (coulomb counting)', () => {
-  // REFERENCES §9: Ah = (1/3600) * integral of I dt; SOC = SOC0 + Q / C_rated.
+  // Coulomb counting (MathWorks "SOC Estimator (Coulomb Counting)"): Ah = (1/3600) * integral of I dt; SOC = SOC0 + Q / C_rated.
   const s = getScenario('bench-liion-3s');
   const bench = createBench(s.bench, 1, s.durationS);
   let ah = 0;

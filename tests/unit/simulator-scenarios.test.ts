@@ -17,7 +17,7 @@ import type { Sample } from '@shared/telemetry/types';
 
 const PROFILE_DIR = join(__dirname, '..', 'fixtures', 'profiles');
 
-test('the fourteen scenarios are listed with one-line descriptions', () => {
+test('the nineteen scenarios are listed with one-line descriptions', () => {
   const list = listScenarios();
   assert.deepEqual(
     list.map((s) => s.name),
@@ -36,6 +36,11 @@ test('the fourteen scenarios are listed with one-line descriptions', () => {
       'sweep-trimmer',
       'sweep-clouds',
       'sweep-day',
+      'board-in-spec',
+      'board-sense-low',
+      'board-sense-high',
+      'board-divider-high',
+      'board-timer-cap-half',
     ],
   );
   for (const s of list) assert.ok(s.description.length > 20 && !s.description.includes('\n'), s.name);
@@ -131,7 +136,7 @@ test('checksummed lines carry a correct NMEA XOR; firmware messages start with #
       messages++;
       continue;
     }
-    // NMEA 0183 checksum (Vaisala WXT530 User's Guide): XOR of every character before the `*`, two hex digits.
+    // NMEA 0183 rule (Vaisala WXT530 User's Guide, "NMEA 0183 v3.0 Checksum Computation"): checksum = XOR of every character before the `*`, two hex digits.
     const m = /^(.*)\*([0-9A-F]{2})$/.exec(line);
     assert.ok(m, line);
     assert.equal(parseInt(m[2], 16), nmeaChecksum(m[1]));
@@ -143,7 +148,7 @@ test('raw ntc counts follow the thermistor divider; an open NTC pins them at the
   const s = getScenario('open-thermistor');
   const th = s.profile.thermistor;
   assert.ok(th && th.model === 'beta');
-  // Beta model (R = R25 at 25 C; EPCOS B57330V2103 table: 10 000 ohm at 25 C): a 10 k NTC against a 10 k pull-up reads half scale (R = R25).
+  // Beta equation (MathWorks Simscape "Thermistor"): at 25 C a 10 k NTC against a 10 k pull-up reads half scale (R = R25).
   assert.equal(thermistorReading(th, 25), Math.round(4095 / 2));
   const lines = [...simulatedLines('open-thermistor', { shape: 'kv', sampleIntervalS: 10 })];
   const samples = samplesOf(lines, th);
@@ -227,7 +232,7 @@ test('NiMH ends on -dV: the voltage falls 5 mV/cell from its peak while the pack
   assert.ok(atEnd, 'the charge ends');
   // The warming between peak and end is what turns into -dV (negative temperature coefficient).
   assert.ok(atEnd.tempC > tempAtPeak + 1);
-  // Panasonic rapid-charge window 0-40 C (Panasonic NiMH handbook, from memory): the -dV end comes before it.
+  // Panasonic rapid-charge window 0-40 C ("Charge Methods for Nickel Metal Hydride Batteries"): the -dV end comes before it.
   assert.ok(atEnd.tempC < 40);
 });
 

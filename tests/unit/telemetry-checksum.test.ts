@@ -2,7 +2,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { appendChecksum, nmeaChecksum, splitChecksum } from '@shared/telemetry/checksum';
 
-// REFERENCES section 8, "Valid vectors", each with the page that printed it.
+// Published NMEA 0183 sentences, each with the page that printed it (XOR re-computed: all agree).
 const VALID: { line: string; source: string }[] = [
   {
     line: '$GPRMC,155123.000,A,4043.8432,N,07359.7653,W,0.15,83.25,200407,,*28',
@@ -25,7 +25,7 @@ const VALID: { line: string; source: string }[] = [
 for (const { line, source } of VALID) {
   test(`published NMEA sentence verifies: ${source}`, () => {
     const split = splitChecksum(line);
-    assert.equal(split.checksum, 'ok'); // source: REFERENCES section 8, the page named in the test title
+    assert.equal(split.checksum, 'ok'); // source: the page named in the test title
     const star = line.lastIndexOf('*');
     assert.equal(split.body, line.slice(1, star)); // the `$` start delimiter is not part of the body
     assert.equal(nmeaChecksum(line.slice(0, star)), parseInt(line.slice(star + 1), 16)); // source: as above
@@ -34,13 +34,13 @@ for (const { line, source } of VALID) {
 }
 
 test('the published bad vector is rejected: $HEHDT,178.3,T*1E XORs to 0x22', () => {
-  // REFERENCES section 8 "Bad-checksum vector" (printed on a web page; XOR computed there: 0x22).
+  // Printed on a web page with *1E, but its XOR is 0x22 (computed here): a reject case.
   const split = splitChecksum('$HEHDT,178.3,T*1E');
   assert.equal(split.checksum, 'bad');
   assert.equal(nmeaChecksum('$HEHDT,178.3,T'), 0x22);
 });
 
-test('definition: XOR of the characters between $ and *, commas included (Vaisala WXT530 guide, REFERENCES 8)', () => {
+test('definition: XOR of the characters between $ and *, commas included (Vaisala WXT530 User Guide, "NMEA 0183 v3.0 Checksum Computation")', () => {
   assert.equal(nmeaChecksum('$A'), 0x41);
   assert.equal(nmeaChecksum('!AB'), 0x41 ^ 0x42); // `!` is the other start delimiter
   assert.equal(nmeaChecksum('A,B'), 0x41 ^ 0x2c ^ 0x42);

@@ -17,17 +17,17 @@ const EXAMPLE = {
   flt: false,
 };
 
-test('prints the PROTOCOL section 1 examples in each shape', () => {
+test('prints the docs/telemetry.md examples in each shape', () => {
   assert.equal(
     formatTelemetryLine(EXAMPLE, 'kv'),
-    't=812.5 vbat=8.214 ibat=0.598 temp=27.1 vin=17.9 iin=0.31 chg=1 flt=0', // PROTOCOL 1 key=value example
+    't=812.5 vbat=8.214 ibat=0.598 temp=27.1 vin=17.9 iin=0.31 chg=1 flt=0', // docs/telemetry.md key=value example
   );
   const four = { t: 812.5, vbat: 8.214, ibat: 0.598, temp: 27.1 };
-  assert.equal(csvHeaderLine(Object.keys(four)), 't,vbat,ibat,temp'); // PROTOCOL 1 CSV example
+  assert.equal(csvHeaderLine(Object.keys(four)), 't,vbat,ibat,temp'); // docs/telemetry.md CSV example
   assert.equal(formatTelemetryLine(four, 'csv'), '812.5,8.214,0.598,27.1');
   assert.equal(
     formatTelemetryLine({ t: 812.5, vbat: 8.214, ibat: 0.598 }, 'json'),
-    '{"t":812.5,"vbat":8.214,"ibat":0.598}', // PROTOCOL 1 JSON example
+    '{"t":812.5,"vbat":8.214,"ibat":0.598}', // docs/telemetry.md JSON example
   );
 });
 
@@ -41,7 +41,7 @@ test('digits, checksum, strings that need quoting', () => {
   assert.equal(splitChecksum(line).checksum, 'ok');
   assert.equal(formatTelemetryLine({ note: 'sun out', src: 'panel' }, 'kv'), 'note="sun out" src=panel');
   assert.equal(formatTelemetryLine({ note: 'a,b', n: 1 }, 'csv'), '"a,b",1'); // RFC 4180 quoting by csv-stringify
-  // XOR of "t,vbat": 0x74 ^ 0x2c ^ 0x76 ^ 0x62 ^ 0x61 ^ 0x74 = 0x59 (computed by hand, NMEA rule of REFERENCES 8).
+  // XOR of "t,vbat": 0x74 ^ 0x2c ^ 0x76 ^ 0x62 ^ 0x61 ^ 0x74 = 0x59 (computed by hand, NMEA 0183 rule, Vaisala WXT530 User's Guide).
   assert.equal(csvHeaderLine(['t', 'vbat'], { checksum: true }), 't,vbat*59');
 });
 

@@ -16,7 +16,7 @@ function frame(chunks: (string | Uint8Array)[], maxBytes?: number): Framed[] {
 }
 
 /**
- * Test oracle: the PROTOCOL section 1 framing rules written the slow, obvious way (one
+ * Test oracle: the docs/telemetry.md framing rules written the slow, obvious way (one
  * byte at a time, whole input at once), to compare the fast framer against.
  */
 function oracle(bytes: Uint8Array, maxBytes: number): Framed[] {
@@ -41,7 +41,7 @@ function oracle(bytes: Uint8Array, maxBytes: number): Framed[] {
   return out;
 }
 
-test('splits at \\n and drops one \\r before it (PROTOCOL section 1)', () => {
+test('splits at \\n and drops one \\r before it (docs/telemetry.md)', () => {
   assert.deepEqual(frame(['a=1\nb=2\r\nc=3\r\r\n']), [
     ['a=1', false],
     ['b=2', false],
@@ -97,7 +97,7 @@ test('a 10 MB burst without newline: one cut line, memory bounded, then resync',
   }
   framer.push(enc.encode('\nvbat=8.2\n'));
   framer.end();
-  assert.ok(maxBuffered <= MAX_LINE_BYTES + 1, `held ${maxBuffered} bytes`); // PROTOCOL 1: lines are at most 4096 bytes
+  assert.ok(maxBuffered <= MAX_LINE_BYTES + 1, `held ${maxBuffered} bytes`); // docs/telemetry.md: lines are at most 4096 bytes
   assert.deepEqual(out, [
     [MAX_LINE_BYTES, true],
     [8, false],

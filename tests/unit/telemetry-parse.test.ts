@@ -17,7 +17,7 @@ function rejection(result: LineResult): { reason: string; detail: string } {
 const near = (actual: number | undefined, expected: number, tol: number) =>
   assert.ok(actual !== undefined && Math.abs(actual - expected) <= tol, `${actual} vs ${expected} ± ${tol}`);
 
-test('key=value: the PROTOCOL section 1 example line', () => {
+test('key=value: the docs/telemetry.md example line', () => {
   const p = createLineParser({});
   const s = sampleOf(p.parse('t=812.5 vbat=8.214 ibat=0.598 temp=27.1 vin=17.9 iin=0.31 chg=1 flt=0', 1000));
   assert.deepEqual(s, {
@@ -48,7 +48,7 @@ test('key=value separated by commas, tabs, semicolons, and `key = value`', () =>
   }
 });
 
-test('CSV after a header line (PROTOCOL section 1 example), header replaced by a new one', () => {
+test('CSV after a header line (docs/telemetry.md example), header replaced by a new one', () => {
   const p = createLineParser({});
   assert.deepEqual(p.parse('t,vbat,ibat,temp', 0), { kind: 'header', fields: ['t', 'vbat', 'ibat', 'temp'] });
   const s = sampleOf(p.parse('812.5,8.214,0.598,27.1', 1));
@@ -79,7 +79,7 @@ test('bare CSV numbers before any header are csv-no-header; reset() forgets the 
   assert.equal(rejection(p.parse('1,2', 0)).reason, 'csv-no-header');
 });
 
-test('JSON object (PROTOCOL section 1 example); bad JSON and non-objects are bad-json', () => {
+test('JSON object (docs/telemetry.md example); bad JSON and non-objects are bad-json', () => {
   const p = createLineParser({});
   const s = sampleOf(p.parse('{"t":812.5,"vbat":8.214,"ibat":0.598}', 0));
   assert.deepEqual([s.deviceS, s.vbatV, s.ibatA], [812.5, 8.214, 0.598]);
@@ -94,7 +94,7 @@ test('JSON object (PROTOCOL section 1 example); bad JSON and non-objects are bad
   assert.equal(rejection(p.parse('{"vbat":true}', 0)).reason, 'bad-value');
 });
 
-test('unit suffixes convert to the base unit of the field (PROTOCOL section 1)', () => {
+test('unit suffixes convert to the base unit of the field (docs/telemetry.md)', () => {
   const p = createLineParser({});
   const s = sampleOf(p.parse('vbat=8214mV ibat=598mA iin=0.6A temp=27.1C vin=17900mV t=1500ms', 0));
   near(s.vbatV, 8.214, 1e-12);
@@ -134,7 +134,7 @@ test('chg/flt accept 0/1 and true/false; src accepts panel, adapter, none', () =
 test('profile field mapping: device key, default unit, calibration; canonical keys still accepted', () => {
   const options: ParserOptions = {
     fields: {
-      vbat: { key: 'vb', unit: 'mV' }, // PROTOCOL section 2 example mapping
+      vbat: { key: 'vb', unit: 'mV' }, // docs/profile.md example mapping
       ibat: { key: 'I_chg', unit: 'mA', scale: 1.02, offset: -0.001 },
       temp: { key: 't' }, // a device that prints temperature as `t`
     },
@@ -162,11 +162,11 @@ test('a profile unit that does not fit the field rejects that key with a message
 
 test('ntc is converted to tempC through the thermistor model, ntcRaw kept', () => {
   const p = createLineParser({
-    thermistor: { model: 'beta', r25: 10000, beta: 3435, pullupOhm: 10000, adcMax: 4095 }, // PROTOCOL 2 example
+    thermistor: { model: 'beta', r25: 10000, beta: 3435, pullupOhm: 10000, adcMax: 4095 }, // docs/profile.md example
   });
   // Pull-up divider at counts c: R = 10k * c / (4095 - c). R = 28 704 Ω is 0 °C for B3435
-  // (Beta equation of the MathWorks Simscape "Thermistor" block; REFERENCES section 5 "Beta check
-  // values"): c = 4095 * 28704 / 38704 = 3036.97.
+  // (Beta equation of the MathWorks Simscape "Thermistor" block, R25 = 10 kΩ,
+  // B = 3435 K; derived): c = 4095 * 28704 / 38704 = 3036.97.
   const s = sampleOf(p.parse('ntc=3037 vbat=8', 0));
   assert.equal(s.ntcRaw, 3037);
   near(s.tempC, 0, 0.05);
@@ -178,7 +178,7 @@ test('ntc is converted to tempC through the thermistor model, ntcRaw kept', () =
   assert.equal(open.tempC, undefined);
   assert.equal(sampleOf(p.parse('ntc=0', 0)).tempC, undefined);
   // A reading printed in ohms bypasses the divider: 4 101 Ω is 50 °C for B3435 (Beta equation,
-  // MathWorks Simscape "Thermistor"; REFERENCES 5 "Beta check values").
+  // MathWorks Simscape "Thermistor"; derived).
   const ohm = sampleOf(p.parse('ntc=4.101kOhm', 0));
   assert.equal(ohm.ntcRaw, 4101);
   near(ohm.tempC, 50, 0.01);
@@ -187,7 +187,7 @@ test('ntc is converted to tempC through the thermistor model, ntcRaw kept', () =
 
 test('ntc without a divider is ohms; Steinhart–Hart model', () => {
   // A, B, C of the 10 kΩ "Type II / 10K3" curve (IDUINO analog temperature sensor manual), 32 650 Ω
-  // = 0.00 °C as in Campbell Scientific 109SS manual Table C-1 (REFERENCES section 5).
+  // = 0.00 °C as in Campbell Scientific 109SS manual Table C-1.
   const p = createLineParser({
     thermistor: { model: 'steinhart-hart', a: 1.129148e-3, b: 2.34125e-4, c: 8.76741e-8 },
   });
@@ -239,7 +239,7 @@ test('checksum checked first: ok lines parse (with or without $), bad lines are 
   const bad = rejection(p.parse('t=1 vbat=8.2*00', 0));
   assert.equal(bad.reason, 'bad-checksum');
   assert.match(bad.detail, /\*00/);
-  // Bad vector printed on a web page whose XOR is really 0x22 (REFERENCES section 8), through the parser.
+  // Bad vector printed on a web page whose XOR is really 0x22 (NMEA 0183 XOR rule, computed here), through the parser.
   assert.equal(rejection(p.parse('$HEHDT,178.3,T*1E', 0)).reason, 'bad-checksum');
 });
 

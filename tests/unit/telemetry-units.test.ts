@@ -17,9 +17,9 @@ const valueOf = (text: string, field: Parameters<typeof parseFieldValue>[1]) => 
 const near = (a: number, b: number, tol = 1e-12) => assert.ok(Math.abs(a - b) <= tol, `${a} vs ${b}`);
 
 test('SI prefixes into base units: m = 1e-3, u/µ = 1e-6, k = 1e3 (SI Brochure, BIPM, prefixes table)', () => {
-  near(valueOf('8214mV', 'vbat'), 8.214); // PROTOCOL section 1 example
-  near(valueOf('598mA', 'ibat'), 0.598); // PROTOCOL section 1 example
-  near(valueOf('0.6A', 'ibat'), 0.6); // PROTOCOL section 1 example
+  near(valueOf('8214mV', 'vbat'), 8.214); // docs/telemetry.md example
+  near(valueOf('598mA', 'ibat'), 0.598); // docs/telemetry.md example
+  near(valueOf('0.6A', 'ibat'), 0.6); // docs/telemetry.md example
   near(valueOf('250uA', 'iin'), 250e-6);
   near(valueOf('250µA', 'iin'), 250e-6);
   near(valueOf('1500ms', 't'), 1.5);
@@ -33,7 +33,7 @@ test('SI prefixes into base units: m = 1e-3, u/µ = 1e-6, k = 1e3 (SI Brochure, 
 });
 
 test('temperatures: C, °C, K and °F (K = °C + 273.15; °F = °C · 9/5 + 32, SI Brochure / definition)', () => {
-  near(valueOf('27.1C', 'temp'), 27.1); // PROTOCOL section 1 example
+  near(valueOf('27.1C', 'temp'), 27.1); // docs/telemetry.md example
   near(valueOf('27.1°C', 'temp'), 27.1);
   near(valueOf('273.15K', 'temp'), 0, 1e-9);
   near(valueOf('32F', 'temp'), 0, 1e-9);
@@ -49,13 +49,18 @@ test('a unit of another quantity is bad-unit and names it; garbage is bad-value'
   }
   const k = parseFieldValue('10k', 'vbat', 'vb');
   assert.ok(!k.ok && k.reason === 'bad-unit'); // `k` alone only means kΩ for a thermistor
-  for (const text of ['', 'abc', 'V3', '--1', '0x10', '1e999']) {
+  for (const text of ['', 'abc', 'V3', '--1', '0x10']) {
     const bad = parseFieldValue(text, 'vbat', 'vbat');
     assert.ok(!bad.ok && bad.reason === 'bad-value', text);
   }
+  // A literal beyond the range of doubles, or a conversion that leaves it, is not a reading.
+  for (const text of ['1e999', '1e306kV', '-1e306kV']) {
+    const bad = parseFieldValue(text, 'vbat', 'vbat');
+    assert.ok(!bad.ok && bad.reason === 'implausible', text);
+  }
 });
 
-test('profile default unit and calibration (PROTOCOL section 2 "unit": "mV")', () => {
+test('profile default unit and calibration (docs/profile.md "unit": "mV")', () => {
   const conv = keyConversion('vbat', { key: 'vb', unit: 'mV' });
   assert.ok(typeof conv !== 'string');
   near((parseFieldValue('8214', 'vbat', 'vb', conv) as { value: number }).value, 8.214);

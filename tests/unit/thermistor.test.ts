@@ -16,8 +16,8 @@ const near = (actual: number, expected: number, tol: number, what: string) =>
   assert.ok(Math.abs(actual - expected) <= tol, `${what}: ${actual} is not within ${tol} of ${expected}`);
 
 test('Beta equation check values, R25 = 10 kΩ', () => {
-  // REFERENCES section 5 "Beta check values" (derived from the Beta equation of the
-  // MathWorks Simscape "Thermistor" block): B = 3435 K -> 28 704 / 4 101 / 987 Ω.
+  // Derived from the Beta equation of the MathWorks Simscape "Thermistor" block
+  // (R = R25·exp[B(1/T − 1/T0)], T0 = 298.15 K): B = 3435 K -> 28 704 / 4 101 / 987 Ω.
   near(betaResistanceOhm(0, 10000, 3435), 28704, 1, 'B3435 at 0 °C');
   near(betaResistanceOhm(50, 10000, 3435), 4101, 1, 'B3435 at 50 °C');
   near(betaResistanceOhm(100, 10000, 3435), 987, 1, 'B3435 at 100 °C');
@@ -31,8 +31,8 @@ test('Beta equation check values, R25 = 10 kΩ', () => {
 
 test('EPCOS B57330V2103 table read with Beta 3435 shows the documented model deviations', () => {
   // Table values: Linux drivers/hwmon/ntc_thermistor.c, table b57330v2103 (EPCOS datasheet),
-  // REFERENCES section 5. Deviations (+1.07 °C at 0 °C, -0.42 °C at 50 °C, +0.58 °C at 100 °C)
-  // from the same section's "Beta check values" row. Tolerance 0.01 °C (values given to 0.01).
+  // Deviations (+1.07 °C at 0 °C, -0.42 °C at 50 °C, +0.58 °C at 100 °C)
+  // computed from the Beta equation at the table's points (derived). Tolerance 0.01 °C (values given to 0.01).
   near(betaTemperatureC(27326, 10000, 3435), 0 + 1.07, 0.01, 'EPCOS 0 °C point');
   near(betaTemperatureC(10000, 10000, 3435), 25, 1e-9, 'EPCOS 25 °C point');
   near(betaTemperatureC(4158, 10000, 3435), 50 - 0.42, 0.01, 'EPCOS 50 °C point');
@@ -40,7 +40,7 @@ test('EPCOS B57330V2103 table read with Beta 3435 shows the documented model dev
 });
 
 test('Steinhart–Hart 10 kΩ "Type II / 10K3" coefficients', () => {
-  // REFERENCES section 5: A = 1.129148e-3, B = 2.34125e-4, C = 8.76741e-8 (IDUINO sensor
+  // A = 1.129148e-3, B = 2.34125e-4, C = 8.76741e-8 (IDUINO sensor
   // manual) -> 10 000 Ω = 25.00 °C, 32 650 Ω = 0.00 °C, 3 601 Ω = 50.0 °C.
   const [a, b, c] = [1.129148e-3, 2.34125e-4, 8.76741e-8];
   near(steinhartHartTemperatureC(10000, a, b, c), 25.0, 0.005, '10 kΩ');
@@ -51,7 +51,7 @@ test('Steinhart–Hart 10 kΩ "Type II / 10K3" coefficients', () => {
 });
 
 test('Steinhart–Hart set common in tutorials gives 24.68 °C at 10 kΩ', () => {
-  // REFERENCES section 5 "S–H set to avoid as a check value": A = 1.009249522e-3,
+  // A set common in tutorials, computed here (derived): A = 1.009249522e-3,
   // B = 2.378405444e-4, C = 2.019202697e-7 -> 24.68 °C at 10 kΩ, R25 = 9 877 Ω.
   const [a, b, c] = [1.009249522e-3, 2.378405444e-4, 2.019202697e-7];
   near(steinhartHartTemperatureC(10000, a, b, c), 24.68, 0.005, 'tutorial set at 10 kΩ');
@@ -69,7 +69,7 @@ test('inverse functions round-trip (derived: each is the algebraic inverse of th
 
 test('ADC divider: pull-up (NTC to ground) and pull-down (NTC on top)', () => {
   // Voltage divider, ratiometric ADC: counts/adcMax = R_ntc / (R_fixed + R_ntc) for a pull-up
-  // (common practice; PROTOCOL section 2 defines the two wirings).
+  // (common practice; docs/profile.md defines the two wirings).
   const up = { position: 'pullup' as const, fixedOhm: 10000, adcMax: 4095 };
   const down = { position: 'pulldown' as const, fixedOhm: 10000, adcMax: 4095 };
   const r1 = resistanceFromAdc(2047.5, up);
@@ -112,7 +112,7 @@ test('temperature -> reading -> temperature for the simulator', () => {
     near(back.tempC, tempC, 0.1, `12-bit quantisation at ${tempC} °C`); // one count ≈ 0.03 °C near 25 °C
   }
   const ohmsModel: ThermistorModel = { model: 'beta', r25: 10000, beta: 3435 };
-  // No divider: the reading is ohms; 28 704 Ω at 0 °C for B3435 (Beta equation, REFERENCES 5 check values).
+  // No divider: the reading is ohms; 28 704 Ω at 0 °C for B3435 (Beta equation, MathWorks Simscape "Thermistor"; derived).
   near(thermistorReading(ohmsModel, 0), 28704, 1, 'no divider: the reading is ohms');
   const ohmReading = thermistorTemperature(model, 28704.29, true);
   assert.ok(ohmReading.ok);

@@ -1,6 +1,6 @@
 /**
  * Diagnosis: why the fault output lit. Pure: takes a run's samples and events, returns causes
- * ranked by confidence, each with evidence in numbers and next steps (PROTOCOL section 3).
+ * ranked by confidence, each with evidence in numbers and next steps (docs/codes.md).
  * Every cause module reads only the history up to the diagnosed time.
  */
 import { buildContext, type DiagnosisContext } from './context';

@@ -1,4 +1,4 @@
-/** The Diagnosis contract: why the fault output lit (PROTOCOL section 3, `diagnose --json`). */
+/** The Diagnosis contract: why the fault output lit (docs/codes.md, `diagnose --json`). */
 import type { ResolvedProfile } from '../../chemistry/types';
 import type { EngineEvent, TimedSample } from '../types';
 
