@@ -13,6 +13,7 @@ import { openRecorder } from '../../main/recorder';
 import { getScenario, simulatedLines } from '../../main/simulator';
 import { createStationManager } from '../../main/station';
 import { until } from './serial-pty';
+import { maxPowerPoint, panelPoint, saturationCurrentForVocA } from '../../main/simulator/solar';
 
 const ROOT = join(__dirname, '..', '..');
 const BIN = join(ROOT, 'bin', 'taperline.cjs');
@@ -97,6 +98,47 @@ test('sweep exits 3 with the reason when the data hold no sweep, 2 for a usage e
     const missing = taperline(['sweep', join(dir, 'nothing.log')]);
     assert.equal(missing.status, 2);
     assert.match(missing.stderr, /nothing\.log/);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('a one-way sweep in CSV without device time, current in mA: the panel truth within 1 %', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-sweep-'));
+  try {
+    // Invented demo panel: 36 cells, 3 A class, warm; swept once from 20 V down to 12 V.
+    const base = {
+      cellsInSeries: 36,
+      ideality: 1.3,
+      photoCurrentStcA: 3,
+      seriesOhm: 0.2,
+      shuntOhm: 200,
+      cellTempC: 45,
+    };
+    const panel = { ...base, saturationCurrentA: saturationCurrentForVocA(base, 21.6) };
+    const rows = ['vin,iin'];
+    let seed = 7;
+    const noise = (): number => ((seed = (seed * 16807) % 2147483647) / 2147483647 - 0.5) * 2;
+    for (let k = 0; k < 600; k++) {
+      const v = 20 - (8 * k) / 600;
+      const i = panelPoint(panel, v, 800).iA;
+      rows.push(`${(v + 0.01 * noise()).toFixed(2)},${Math.round(i * 1000 + 2 * noise())}mA`);
+    }
+    const file = join(dir, 'oneway.csv');
+    writeFileSync(file, rows.join('\n') + '\n');
+    const out = taperline(['sweep', file, '--json', '--interval', '0.5']);
+    assert.equal(out.status, 0, out.stderr);
+    const r = JSON.parse(out.stdout) as {
+      mppV: number;
+      mppW: number;
+      fit: { model: string };
+      window: { toS: number };
+    };
+    const truth = maxPowerPoint(panel, 800);
+    assert.ok(Math.abs(r.mppV / truth.vV - 1) < 0.01, `V ${r.mppV} vs ${truth.vV}`);
+    assert.ok(Math.abs(r.mppW / truth.pW - 1) < 0.01, `W ${r.mppW} vs ${truth.pW}`);
+    assert.equal(r.fit.model, 'single-diode');
+    assert.ok(Math.abs(r.window.toS - 299.5) < 1, 'half a second a line');
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }

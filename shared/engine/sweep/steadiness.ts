@@ -59,7 +59,17 @@ export function checkSteadiness(points: readonly SweepPoint[], curve: FittedCurv
   const lo = Math.min(...level);
   const hi = Math.max(...level);
   const changeShare = (hi - lo) / hi;
-  if (changeShare <= STEADY_TOLERANCE) return { changed: false, changeShare, evidence: null, longest: all };
+  const revisit = revisitEvidence(points, idx, ratio);
+  // Against the rigid diode curve a step in the level means the light changed. A smooth curve
+  // bends with the points, so along a one-way sweep a change of light and a change of shape look
+  // alike: there only revisits of the same voltage decide.
+  const changed =
+    curve.model === 'smooth' ? revisit !== null : changeShare > STEADY_TOLERANCE || revisit !== null;
+  if (!changed) {
+    // Along a smooth curve the level's range measures the fit, not the light.
+    const share = curve.model === 'smooth' ? 0 : changeShare;
+    return { changed: false, changeShare: share, evidence: null, longest: all };
+  }
 
   // Greedy stretches of steady level: a new stretch starts where the level leaves the band
   // around the mean level of the stretch so far.
@@ -82,7 +92,7 @@ export function checkSteadiness(points: readonly SweepPoint[], curve: FittedCurv
   return {
     changed: true,
     changeShare,
-    evidence: revisitEvidence(points, idx, ratio) ?? levelEvidence(points, idx, level),
+    evidence: revisit ?? levelEvidence(points, idx, level),
     longest,
   };
 }
