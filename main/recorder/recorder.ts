@@ -411,6 +411,23 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       enqueue({ kind: 'event', runId, event });
     },
     setRunInfo(runId: number, info: RunInfo) {
+      // Written at once when the run's row is in the file (a Runs list asked right after shows
+      // it); queued with the rest when it is not there yet or the file cannot be written now.
+      // An older queued info of the same run must not land after this one.
+      if (problem === null && !queue.some((o) => o.kind === 'info' && o.runId === runId)) {
+        try {
+          let written = true;
+          db.transaction(() => {
+            for (const [key] of INFO_COLUMNS) {
+              const value = info[key];
+              if (value !== undefined && st.info[key].run(value, runId).changes === 0) written = false;
+            }
+          })();
+          if (written) return;
+        } catch {
+          // Queued below and retried with the next flush.
+        }
+      }
       enqueue({ kind: 'info', runId, info });
     },
     updateTotals(runId: number, totals: RunTotals) {

@@ -15,6 +15,13 @@ import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';
 import { toFeedLine } from './feed-line';
 import { defaultMakeSource } from './sources';
+import { runChecks } from '@shared/engine/checks';
+import {
+  applyBoard,
+  boardFromFirmware,
+  NO_BOARD,
+  type StationBoard,
+} from '@shared/engine/checks/station-board';
 import type {
   SourceConfig,
   StationConfig,
@@ -57,6 +64,8 @@ interface Station {
   gap: { startRxS: number; reason: string } | null;
   lines: number;
   rejected: number;
+  /** The board under test (board id, operator, firmware, batch). */
+  board: StationBoard;
   /** Runs of this station are recorded (false for a replay of a recorded run). */
   records: boolean;
   /** No profile given: lines wait here until the first pack voltage shows the cell count. */
@@ -132,6 +141,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
               ? 'not recording: no database is open'
               : 'not recorded (a replay of a recorded run)',
           },
+      board: { ...st.board },
     };
   }
 
@@ -152,6 +162,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         { resumeWithinS },
       );
       st.runId = started.runId;
+      if (st.board !== NO_BOARD) recorder.setRunInfo(started.runId, { ...st.board });
       if (started.resumed) {
         // Rebuild the run's state from its own lines, then mark the time the recorder was away.
         for (const line of recorder.lineIterator(started.runId))
@@ -171,10 +182,27 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     }
   }
 
+  /** The run judged against the profile's expect ranges, stored with it for the Runs view. */
+  function storeVerdict(recorder: Recorder, st: Station): void {
+    if (!st.profile.expect || st.runId === null) return;
+    // Everything queued must be in the file before it is read back.
+    recorder.flush();
+    const samples = recorder.allSamples(st.runId);
+    if (samples.length === 0) return;
+    const report = runChecks({
+      profile: st.profile,
+      samples,
+      events: recorder.events(st.runId),
+      board: st.board.boardId,
+    });
+    recorder.setRunInfo(st.runId, { verdictJson: JSON.stringify(report) });
+  }
+
   function endRun(st: Station, reason: RunEndReason): void {
     const recorder = recorderOf(st);
     if (!recorder || st.runId === null) return;
     try {
+      guarded(st, 'judging the run', () => storeVerdict(recorder, st));
       recorder.endRun(st.runId, now(), reason, st.pipeline.summary());
     } catch (err) {
       problem(
@@ -223,6 +251,10 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
   function onLine(st: Station, line: SourceLine): void {
     if (st.assume) return assumeFrom(st, st.assume, line);
     if (st.gap) closeGap(st, line.rxS);
+    if (line.text.startsWith('#')) {
+      const fromFirmware = boardFromFirmware(line.text);
+      if (fromFirmware) setBoard(st, fromFirmware);
+    }
     const out = st.pipeline.pushLine(line.text, line.rxS, line.tooLong);
     const feed = toFeedLine(line.text, line.rxS, out.result);
     const recorder = recorderOf(st);
@@ -235,6 +267,25 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     emitter.emit('line', { stationId: st.id, line: feed });
     if (out.sample) emitter.emit('sample', { stationId: st.id, sample: out.sample });
     record(st, out.events);
+  }
+
+  /** A new board id on a station that already tested one starts a new run for the new board. */
+  function setBoard(st: Station, update: Partial<StationBoard>): void {
+    const change = applyBoard(st.board, update, st.pipeline.state().last !== null);
+    if (!change) return;
+    st.board = change.board;
+    if (change.newRun) {
+      endRun(st, 'board-changed');
+      st.pipeline = createPipeline(st.profile);
+      st.lines = 0;
+      st.rejected = 0;
+      st.gap = null;
+      startRun(st);
+    } else {
+      const recorder = recorderOf(st);
+      if (recorder && st.runId !== null) recorder.setRunInfo(st.runId, { ...st.board });
+    }
+    emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: change.newRun });
   }
 
   function onStatus(st: Station, status: SourceStatus): void {
@@ -340,6 +391,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         gap: null,
         lines: 0,
         rejected: 0,
+        board: NO_BOARD,
         records: config.record !== false,
         assume: assumed ? new ProfileAssumer() : null,
       };
@@ -377,6 +429,32 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     profileJsonOf(stationId: string): unknown {
       const st = stations.get(stationId);
       return st ? st.profileJson : null;
+    },
+    async setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot> {
+      const st = must(stationId);
+      setBoard(st, board);
+      return snapshot(st);
+    },
+    async startBatch(batchId: string): Promise<StationSnapshot[]> {
+      // One burn-in, one start: every station's current run ends and a run of the batch begins.
+      // A replay of a recorded run is never part of a burn-in.
+      const live = [...stations.values()].filter((st) => st.records);
+      for (const st of live) {
+        st.board = { ...st.board, batchId };
+        if (st.assume) continue;
+        if (st.pipeline.state().last !== null) {
+          endRun(st, 'batch-started');
+          st.pipeline = createPipeline(st.profile);
+          st.lines = 0;
+          st.rejected = 0;
+          st.gap = null;
+          startRun(st);
+        } else if (recorder && st.runId !== null) {
+          recorder.setRunInfo(st.runId, { batchId });
+        }
+        emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: true });
+      }
+      return live.map(snapshot);
     },
     async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
       const st = must(stationId);

@@ -20,9 +20,10 @@ import {
 } from '../format';
 import type { Navigator, View, ViewTarget } from '../router';
 import type { StationModel, Store } from '../store';
-import { errorText, readEvents, readRun, type RunListRow } from '../wire';
+import { errorText, readChecks, readEvents, readRun, type ChecksView, type RunListRow } from '../wire';
 import { renderAlarmList, type AlarmRow } from './alarm-list';
 import { phaseLegend } from './phase-legend';
+import { ChecksPanel } from './checks-panel';
 import { recordingBadge, sourceBadge } from './station-status';
 
 const SPANS: { label: string; spanS: number | null }[] = [
@@ -35,7 +36,7 @@ const SPANS: { label: string; spanS: number | null }[] = [
 type Mode =
   | { kind: 'none' }
   | { kind: 'live'; stationId: string }
-  | { kind: 'run'; run: RunListRow; source: RecordedRunSource };
+  | { kind: 'run'; run: RunListRow; source: RecordedRunSource; checks: ChecksView | null };
 
 export class BenchView implements View {
   private mode: Mode = { kind: 'none' };
@@ -66,6 +67,7 @@ export class BenchView implements View {
   private readonly followBtn: HTMLButtonElement;
   private readonly pauseBtn: HTMLButtonElement;
   private readonly spanBtns: HTMLButtonElement[] = [];
+  private readonly checksPanel: ChecksPanel;
 
   constructor(
     private readonly root: HTMLElement,
@@ -73,6 +75,7 @@ export class BenchView implements View {
     private readonly api: Api,
     private readonly nav: Navigator,
   ) {
+    this.checksPanel = new ChecksPanel(api);
     const chartsHost = h('div', { class: 'trend-host' });
     this.panel = new TrendPanel(chartsHost, BENCH_QUANTITIES, (t) => this.onPick(t));
     this.panel.onWindow((w) => this.onWindow(w));
@@ -114,6 +117,8 @@ export class BenchView implements View {
       this.metrics,
       h('h3', { class: 'side-title' }, 'Alarms'),
       this.alarms,
+      h('h3', { class: 'side-title' }, 'Board and checks'),
+      this.checksPanel.el,
     );
     const main = h('div', { class: 'bench-main' }, this.toolbar, this.legendSlot, this.pickBar, chartsHost);
     root.append(this.head, h('div', { class: 'bench-body' }, side, main));
@@ -122,6 +127,9 @@ export class BenchView implements View {
     store.on('samples', (id) => {
       if (this.visible && this.mode.kind === 'live' && this.mode.stationId === id)
         this.panel.requestRedraw('data');
+    });
+    store.on('checks', (id) => {
+      if (this.mode.kind === 'live' && this.mode.stationId === id) this.queueRender();
     });
     store.on('events', (id) => {
       if (this.mode.kind === 'live' && this.mode.stationId === id) {
@@ -168,6 +176,17 @@ export class BenchView implements View {
     this.panel.showSpan(this.activeSpan);
     this.legendSlot.replaceChildren(phaseLegend(model.view.profile.chemistry));
     this.queueRender();
+    // The latest checks at once; the next ones arrive as pushes.
+    void this.api
+      .request('stations.checks', { stationId })
+      .then((raw) => {
+        const checks = readChecks(raw);
+        if (checks) {
+          model.checks = checks;
+          this.queueRender();
+        }
+      })
+      .catch(() => {});
   }
 
   async openRun(runId: number): Promise<void> {
@@ -176,7 +195,8 @@ export class BenchView implements View {
       const run = readRun(await this.api.request('runs.get', { runId }));
       const events = readEvents(await this.api.request('runs.events', { runId }));
       const source = await RecordedRunSource.open(this.api, runId, run.durationS, run.lines, events);
-      this.mode = { kind: 'run', run, source };
+      const checks = readChecks(await this.api.request('runs.checks', { runId }));
+      this.mode = { kind: 'run', run, source, checks };
       this.pickT = null;
       this.activeSpan = null;
       this.panel.setSource(source);
@@ -371,6 +391,7 @@ export class BenchView implements View {
       `${model.view.label || model.view.id} · ${profile.name}`,
       state.phase === 'fault' || faultAlarm ? (faultAlarm?.t ?? state.t) : null,
     );
+    this.checksPanel.showLive(model.view.id, model.view.board, model.checks);
     const last = state.last;
     this.readouts.replaceChildren(
       ...readout('Pack', formatNumber(last?.vbatV, 3, 'V')),
@@ -428,6 +449,11 @@ export class BenchView implements View {
       firstFault ? firstFault.t : null,
     );
     this.readouts.replaceChildren();
+    if (this.mode.kind === 'run')
+      this.checksPanel.showRun(
+        { boardId: run.boardId ?? null, operator: run.operator ?? null, firmware: run.firmware ?? null },
+        this.mode.checks,
+      );
     this.metrics.replaceChildren(
       ...metric('Charge in', formatNumber(run.ah, 3, 'Ah')),
       ...metric('Energy in', formatNumber(run.wh, 2, 'Wh')),

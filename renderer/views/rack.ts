@@ -4,6 +4,7 @@
  * (sortable by any column, filtered by any word). A bench whose link is down is one stale
  * group. A tile or a row opens the station's Bench view (click or Enter).
  */
+import { verdictBadge } from './checks-panel';
 import { drawSparkline } from '../charts/sparkline';
 import { hatchSwatch } from '../charts/phase-style';
 import { button, h } from '../dom';
@@ -359,6 +360,7 @@ export class RackView implements View {
       ),
       alarmLine,
       sourceLine,
+      verdictBadge(model.checks) ?? '',
     );
     const alarmWords = tileAlarmWords(alarm);
     entry.tile.setAttribute(

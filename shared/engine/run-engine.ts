@@ -178,7 +178,9 @@ class Engine implements RunEngine {
     } else {
       const dtS = t > this.lastT ? t - this.lastT : 0;
       if (this.bridgeNext) {
-        this.bridgeNext = false;
+        // The interval over a reported interruption. A line placed with no elapsed time (a time
+        // glitch) does not cross it yet: the bridge waits for the first line that moves on.
+        if (dtS > 0) this.bridgeNext = false;
         this.progress.restart();
         this.contact.reset();
       } else if (dtS > lim.silenceS) {

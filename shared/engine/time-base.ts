@@ -41,9 +41,10 @@ export class RunTimeBase {
   private started = false;
   private useDeviceClock = false;
   private hostClock = true;
-  private firstDeviceS = 0;
+  /** Run time t = deviceS − baseDeviceS + baseT (rebased at each reboot, so a huge corrupt first time cannot cost precision). */
+  private baseDeviceS = 0;
+  private baseT = 0;
   private firstRxS = 0;
-  private deviceOffsetS = 0;
   /** Device time and receive time of the last line in step with the clock. */
   private lastDeviceS = 0;
   private lastDeviceRxS = 0;
@@ -79,9 +80,10 @@ export class RunTimeBase {
       this.started = true;
       this.hostClock = this.mode === 'host' || (this.mode === 'auto' && rxS >= EPOCH_FLOOR_S);
       this.useDeviceClock = deviceS !== undefined && Number.isFinite(deviceS);
-      this.firstDeviceS = this.useDeviceClock ? (deviceS as number) : 0;
+      this.baseDeviceS = this.useDeviceClock ? (deviceS as number) : 0;
+      this.baseT = 0;
       this.firstRxS = rxS;
-      this.lastDeviceS = this.firstDeviceS;
+      this.lastDeviceS = this.baseDeviceS;
       this.lastDeviceRxS = rxS;
       this.lastRxS = rxS;
       this.lastT = 0;
@@ -108,7 +110,7 @@ export class RunTimeBase {
     if (stepS >= 0 && stepS <= this.allowedStepS(rxS - this.lastDeviceRxS)) {
       this.accept(deviceS, rxS, stepS);
       this.candidateDeviceS = NaN;
-      return deviceS - this.firstDeviceS + this.deviceOffsetS;
+      return deviceS - this.baseDeviceS + this.baseT;
     }
     const candS = this.candidateDeviceS;
     const fromCandS = deviceS - candS;
@@ -127,10 +129,11 @@ export class RunTimeBase {
         this.lastKind = PLACED_RESET;
       }
       const candT = this.lastT + this.bridgeS(candS, this.candidateRxS);
-      this.deviceOffsetS = candT - (candS - this.firstDeviceS);
+      this.baseDeviceS = candS;
+      this.baseT = candT;
       this.candidateDeviceS = NaN;
       this.accept(deviceS, rxS, fromCandS);
-      return deviceS - this.firstDeviceS + this.deviceOffsetS;
+      return deviceS - this.baseDeviceS + this.baseT;
     }
     // Out of order, or far ahead of what the clocks allow: this line's time is a glitch.
     this.glitches++;

@@ -35,9 +35,17 @@ export interface StationSnapshot {
   lines: number;
   rejected: number;
   recording: { ok: boolean; problem: string | null };
+  /** The board under test: id, operator, firmware version, burn-in batch (null when unknown). */
+  board?: {
+    boardId: string | null;
+    operator: string | null;
+    firmware: string | null;
+    batchId: string | null;
+  };
 }
 
-export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';
+export type RunEndReason =
+  'completed' | 'stopped' | 'interrupted' | 'profile-changed' | 'board-changed' | 'batch-started';
 
 export interface RunRow {
   id: number;

@@ -10,7 +10,9 @@ const stationId = z
   .string()
   .min(1)
   .max(130)
-  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only');
+  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only')
+  // Ids end up in file names and topic paths: no `..` segment may climb out of them.
+  .refine((id) => !id.split('/').includes('..'), 'no ".." segment');
 /** The id of a new station added from the Connect view. */
 const newStationId = z
   .string()
@@ -47,6 +49,29 @@ export const requestSchemas = {
   'stations.setInputSetpoint': z
     .object({ stationId, inputSetpointV: z.number().positive().max(1000) })
     .strict(),
+  /** The board under test: typed or scanned id (a new id starts a new run), operator, batch. */
+  'stations.setBoard': z
+    .object({
+      stationId,
+      boardId: z
+        .string()
+        .regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces')
+        .nullable()
+        .optional(),
+      operator: z.string().max(120).nullable().optional(),
+      batchId: z
+        .string()
+        .regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces')
+        .nullable()
+        .optional(),
+    })
+    .strict(),
+  /** Start a burn-in batch: every live station begins a new run of this batch. */
+  'stations.startBatch': z
+    .object({ batchId: z.string().regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces') })
+    .strict(),
+  /** The station's latest board checks (also pushed as `checks`). */
+  'stations.checks': z.object({ stationId }).strict(),
   'ports.list': z.object({}).strict(),
   'scenarios.list': z.object({}).strict(),
   'profile.validate': z.object({ profile: profileJson }).strict(),
@@ -78,6 +103,8 @@ export const requestSchemas = {
     .strict(),
   'runs.delete': z.object({ runId }).strict(),
   'runs.diagnose': z.object({ runId, atT: z.number().min(0).optional() }).strict(),
+  /** A recorded run judged against its profile's expect ranges (the `taperline check` JSON). */
+  'runs.checks': z.object({ runId }).strict(),
   /** CSV export: Electron asks where to save; the web mode answers with a download URL. */
   'runs.exportCsv': z.object({ runId }).strict(),
   /** Run report (self-contained HTML): saved (Electron) or a download URL (web). */

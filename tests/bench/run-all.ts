@@ -15,6 +15,7 @@ const BENCHES = [
   'firmware-size-bench.ts',
   'unplug-bench.ts',
   'sweep-bench.ts',
+  'checks-bench.ts',
 ];
 const extra = process.argv.slice(2);
 let failed = 0;

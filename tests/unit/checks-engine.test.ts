@@ -268,3 +268,15 @@ test('no expect, no checks: the verdict rests on the charger fault alone', () =>
   assert.equal(r.board, 'GS-1');
   assert.equal(r.verdict, 'pass');
 });
+
+test("the timer is the board's fault output, not Taperline's own timer alarm", () => {
+  // The profile's 40 min timer raises Taperline's alarm at 40 min, but the board (its fault
+  // output reported and never asserted) keeps charging to 50 min: its timer never acted.
+  const samples = ccCvCharge({ ...charge, durationS: 3000, pins: true });
+  const r = judge(profileWith({ timerMin: [36, 44] }, { timerMin: 40 }), samples);
+  assert.ok(r.fault, 'the run faulted on the timer alarm');
+  const timer = byCode(r, 'timerMin');
+  assert.equal(timer.measured, null);
+  assert.equal(timer.result, 'fail');
+  assert.match(timer.note, /never acted/);
+});

@@ -311,3 +311,18 @@ test('the same alarm is raised once per episode and again after it cleared', () 
   assert.equal(alarmsOf(events).filter((a) => a.code === 'overtemp').length, 2);
   assert.equal(clears(events, 'overtemp').length, 1);
 });
+
+test('a reported gap is not announced twice when the first line after it was a time glitch', () => {
+  const engine = createRunEngine(li());
+  pushAll(engine, steady(0, 5, 1, { vbatV: 11.4, ibatA: 1 }));
+  assert.equal(engine.gap(4.5, null, 'port unplugged').length, 1);
+  // The time base placed the first line back with no elapsed time (its device clock jumped).
+  const glitch = engine.push({ t: 4, rxS: 4, vbatV: 11.4, ibatA: 1, extra: {} });
+  const next = engine.push({ t: 21, rxS: 21, vbatV: 11.4, ibatA: 1, extra: {} });
+  assert.deepEqual(
+    [...glitch, ...next].filter((e) => e.type === 'gap'),
+    [],
+  );
+  // Nothing integrated over the interruption: 4 s of charge before it only.
+  assert.ok(Math.abs(engine.summary().ah - 4 / 3600) < 1e-12);
+});

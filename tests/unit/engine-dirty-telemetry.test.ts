@@ -278,3 +278,14 @@ test('an assumed profile (no capacity, no charge current) keeps a 10 A charge; o
   assert.deepEqual(pipeline.rejectCounts(), { implausible: 1 });
   assert.ok(Math.abs(pipeline.summary().ah - (19 * 10) / 3600) < 1e-9);
 });
+
+test('a corrupt first device time (t=1e300) costs no precision: the run goes on from the next lines', () => {
+  const lines = cleanLines.slice(0, 301);
+  lines[0] = line(clean[0], { t: '1e300' });
+  const r = replay(lines);
+  // The first line's clock is not continued: the next lines restart it (counted as one reset).
+  assert.equal(r.resets, 1);
+  assert.ok(Math.abs(r.durationS - 299) <= 1, `duration ${r.durationS}`);
+  const truth = replay(cleanLines.slice(1, 301)).ah;
+  assert.ok(Math.abs(r.ah - truth) / truth < 0.01, `${r.ah} vs ${truth} Ah`);
+});

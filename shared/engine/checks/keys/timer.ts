@@ -25,25 +25,29 @@ const OTHER_CAUSES = new Set([
 export function measureTimer(ctx: CheckContext, limits: [number, number]): Measurement {
   const start = ctx.phases.find((s) => CHARGING.includes(s.phase));
   if (!start) return { measured: null, basis: null, note: 'the charger never started charging' };
-  const fault = ctx.fault;
-  if (fault) {
-    const before = ctx.alarms.filter((a) => a.t <= fault.t + 2 * ctx.typicalDtS);
+  // The board's own timer shows on its fault output; Taperline's timer alarm (the profile's
+  // timerMin) also puts the run in the fault phase, so the phase is used only without a pin.
+  const reportsPin = ctx.samples.some((x) => x.flt !== undefined);
+  const pinT = ctx.samples.find((x) => x.flt === true)?.t;
+  const faultT = reportsPin ? pinT : ctx.fault?.t;
+  if (faultT !== undefined) {
+    const before = ctx.alarms.filter((a) => a.t <= faultT + 2 * ctx.typicalDtS);
     const timerAlarm = before.some((a) => a.code === 'timer');
     const other = before.find((a) => OTHER_CAUSES.has(a.code));
-    const phaseAtFault = [...ctx.phases].reverse().find((s) => s.startT < fault.t && s.phase !== 'fault');
+    const phaseAtFault = [...ctx.phases].reverse().find((x) => x.startT < faultT && x.phase !== 'fault');
     if (!timerAlarm && (other || phaseAtFault?.phase === 'precondition')) {
       return {
         measured: null,
         basis: null,
-        note: `the charger faulted at ${fmtMin(fault.t)} for another reason (${other ? other.code : 'stuck in precondition'}), not its timer`,
+        note: `the charger faulted at ${fmtMin(faultT)} for another reason (${other ? other.code : 'stuck in precondition'}), not its timer`,
       };
     }
-    const spanS = fault.t - start.startT;
+    const spanS = faultT - start.startT;
     return {
       measured: round(spanS / 60, 2),
-      basis: { fromT: start.startT, toT: fault.t, samples: countBetween(ctx, start.startT, fault.t) },
+      basis: { fromT: start.startT, toT: faultT, samples: countBetween(ctx, start.startT, faultT) },
       note:
-        `from the start of charging at ${fmtMin(start.startT)} to the charger's fault at ${fmtMin(fault.t)}` +
+        `from the start of charging at ${fmtMin(start.startT)} to the charger's ${reportsPin ? 'fault output' : 'fault'} at ${fmtMin(faultT)}` +
         (timerAlarm ? ' (timer alarm raised)' : ' (stopped while charging, nothing else to explain it)'),
     };
   }
