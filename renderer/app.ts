@@ -14,6 +14,7 @@ import { DiagnosisView } from './views/diagnosis';
 import { FeedView } from './views/feed';
 import { RackView } from './views/rack';
 import { RunsView } from './views/runs';
+import { SweepView } from './views/sweep';
 
 function start(): void {
   const api = createApi();
@@ -50,11 +51,12 @@ function start(): void {
   views.feed = new FeedView(byId('view-feed'), store, api);
   views.connect = new ConnectView(byId('view-connect'), store, api, nav);
   views.diagnosis = new DiagnosisView(byId('view-diagnosis'), store, api, nav);
+  views.sweep = new SweepView(byId('view-sweep'), store, api);
 
   for (const b of document.querySelectorAll<HTMLButtonElement>('.nav-btn')) {
     b.addEventListener('click', () => nav.open({ view: b.dataset.view as ViewName } as ViewTarget));
   }
-  // Alt+1..6 switch views from anywhere, also from inside a text box.
+  // Alt+1..7 switch views from anywhere, also from inside a text box.
   document.addEventListener('keydown', (e) => {
     if (!e.altKey || e.ctrlKey || e.metaKey) return;
     const index = Number(e.key) - 1;
@@ -106,6 +108,7 @@ function navLabel(view: ViewName): string {
     feed: 'Line feed',
     connect: 'Connect & profile',
     diagnosis: 'Diagnosis',
+    sweep: 'Sweep',
   }[view];
 }
 

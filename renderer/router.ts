@@ -1,6 +1,14 @@
 /** Which view is open, and with what: the one place views ask to switch. */
-export type ViewName = 'bench' | 'rack' | 'runs' | 'feed' | 'connect' | 'diagnosis';
-export const VIEW_ORDER: readonly ViewName[] = ['bench', 'rack', 'runs', 'feed', 'connect', 'diagnosis'];
+export type ViewName = 'bench' | 'rack' | 'runs' | 'feed' | 'connect' | 'diagnosis' | 'sweep';
+export const VIEW_ORDER: readonly ViewName[] = [
+  'bench',
+  'rack',
+  'runs',
+  'feed',
+  'connect',
+  'diagnosis',
+  'sweep',
+];
 
 export type ViewTarget =
   | { view: 'bench'; stationId?: string; runId?: number }
@@ -8,7 +16,8 @@ export type ViewTarget =
   | { view: 'runs' }
   | { view: 'feed'; stationId?: string }
   | { view: 'connect'; stationId?: string }
-  | { view: 'diagnosis'; stationId?: string; runId?: number; atT?: number };
+  | { view: 'diagnosis'; stationId?: string; runId?: number; atT?: number }
+  | { view: 'sweep'; stationId?: string };
 
 export interface View {
   /** Called when the view opens (again), with what it should show. */

@@ -16,6 +16,7 @@ import { runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
+import { SweepWatch } from './sweep-watch';
 import { LiveChecks } from './live-checks';
 import { runChecks } from '@shared/engine/checks';
 
@@ -72,6 +73,10 @@ export function createAppService(options: AppServiceOptions): AppService {
     return snapshot ? view(snapshot) : null;
   });
 
+  const sweeps = new SweepWatch({
+    profileOf: (stationId) => stations.get(stationId)?.profile ?? null,
+    emit: (data) => emit({ push: 'sweep', data }),
+  });
   const liveChecks = new LiveChecks(() => Date.now());
   const judgeLive = (stationId: string) => {
     const snapshot = stations.get(stationId);
@@ -112,10 +117,12 @@ export function createAppService(options: AppServiceOptions): AppService {
       histories.delete(stationId);
       liveChecks.forget(stationId);
       acks.forget(stationId);
+      sweeps.forget(stationId, true);
       emit({ push: 'station-removed', data: { stationId } });
     },
     sample: ({ stationId, sample }: Parameters<StationManagerListener<'sample'>>[0]) => {
       historyOf(stationId).addSample(sample);
+      sweeps.addSample(stationId, sample);
       batcher.addSample(stationId, sample);
     },
     event: ({ stationId, event }: { stationId: string; event: EngineEvent }) => {
@@ -213,6 +220,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       const snapshot = await stations.setProfile(stationId, profile);
       // A new run starts with a new time axis: the old history belongs to the closed run.
       histories.set(stationId, new StationHistory());
+      sweeps.forget(stationId, false);
       return view(snapshot);
     },
     'stations.history': ({ stationId, fromT }: P<'stations.history'>) => {
@@ -262,6 +270,32 @@ export function createAppService(options: AppServiceOptions): AppService {
         events: history.eventsFrom(),
         atT,
       });
+    },
+    'stations.sweep': ({ stationId, watch }: P<'stations.sweep'>) => {
+      needStation(stationId);
+      if (!watch) {
+        sweeps.unwatch(stationId);
+        return null;
+      }
+      return sweeps.watch(stationId);
+    },
+    'stations.setInputSetpoint': async ({ stationId, inputSetpointV }: P<'stations.setInputSetpoint'>) => {
+      needStation(stationId);
+      const json = stations.profileJsonOf?.(stationId);
+      if (!json || typeof json !== 'object' || Array.isArray(json))
+        throw new RequestError(
+          `station "${stationId}" has no profile to change yet: give it a profile first`,
+        );
+      // Two decimals: a trimmer is not set finer than 10 mV.
+      const profile = {
+        ...(json as Record<string, unknown>),
+        inputSetpointV: Math.round(inputSetpointV * 100) / 100,
+      };
+      resolveProfile(profile, 'profile with the new set point');
+      const snapshot = await stations.setProfile(stationId, profile);
+      histories.set(stationId, new StationHistory());
+      sweeps.forget(stationId, false);
+      return view(snapshot);
     },
     'stations.setBoard': async ({ stationId, boardId, operator, batchId }: P<'stations.setBoard'>) => {
       needStation(stationId);
@@ -374,6 +408,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       return () => bus.off('push', listener);
     },
     close() {
+      sweeps.close();
       clearInterval(checksTimer);
       batcher.flushAll();
       batcher.close();

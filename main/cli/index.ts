@@ -8,6 +8,7 @@ import { registerRecord } from './record';
 import { registerServe } from './serve';
 import { registerReport } from './report';
 import { registerDiagnose } from './diagnose';
+import { registerSweep } from './sweep';
 import { registerCheck } from './check';
 
 export async function runCli(argv: string[]): Promise<number> {
@@ -23,6 +24,7 @@ export async function runCli(argv: string[]): Promise<number> {
     registerServe,
     registerReport,
     registerDiagnose,
+    registerSweep,
     registerCheck,
   ]) {
     register(program);

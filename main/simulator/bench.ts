@@ -8,7 +8,9 @@ import { thermistorReading, thermistorTemperature, dividerOf } from '@shared/che
 import { packVoltageCurve, stepPack, type PackParams, type PackState } from './pack';
 import { stepTemperatureC, type ThermalParams } from './thermal';
 import { converterInputW, type ConverterParams } from './converter';
-import { capacityOf, settle, type SupplyParams, type SupplyCapacity } from './supply';
+import { capacityOf, panelMaxPowerPoint, settle, type SupplyParams, type SupplyCapacity } from './supply';
+import { createPanelState, type PanelThermalParams } from './panel-thermal';
+import { setpointOnPath, type SetpointKnot } from './setpoint-path';
 import {
   clearSkyWPerM2,
   cloudTransmission,
@@ -45,6 +47,12 @@ export interface BenchParams {
   /** Run time at which the NTC wire breaks; null = never. */
   thermistorOpensAtS: number | null;
   contact: ContactParams | null;
+  /** Solar only: panel temperature from the light (reported as `tpanel`); none = fixed cell temperature. */
+  panelThermal?: PanelThermalParams;
+  /** The input set point over run time (a person turning the trimmer); none = the profile's, fixed. */
+  setpointPath?: SetpointKnot[];
+  /** Clouds at fixed times, besides the seeded ones (a scenario that needs one at a known moment). */
+  fixedClouds?: Cloud[];
 }
 
 /** What is physically true on the bench at one instant (before any measurement noise). */
@@ -70,6 +78,12 @@ export interface BenchReadings {
   /** Energy taken from the source and delivered into the pack since the start. */
   sourceWh: number;
   packWh: number;
+  /** Solar only, the simulator's truth for tests: panel cell temperature and the panel's true
+   *  maximum power point at this instant (null for an adapter). */
+  panelTempC: number | null;
+  truthMpp: { vV: number; pW: number } | null;
+  /** The input set point the charger holds at this instant. */
+  setpointV: number;
 }
 
 export interface Bench {
@@ -99,10 +113,15 @@ function largestBelow(f: (x: number) => number, target: number, hi: number): num
 
 export function createBench(params: BenchParams, seed: number, spanS: number): Bench {
   const rng = createRng(seed);
-  const clouds: Cloud[] = params.day ? makeClouds(rng, params.day.clouds, spanS) : [];
+  const clouds: Cloud[] = params.day
+    ? [...makeClouds(rng, params.day.clouds, spanS), ...(params.fixedClouds ?? [])]
+    : [];
   const contact: Contact = params.contact ? makeContact(rng, params.contact, spanS) : SOLID_CONTACT;
   const wiring = dividerOf(params.thermistor);
-  const setpointV = params.charger.inputSetpointV ?? 0;
+  const fixedSetpointV = params.charger.inputSetpointV ?? 0;
+  const setpointAt = (t: number): number =>
+    params.setpointPath ? setpointOnPath(params.setpointPath, t, fixedSetpointV) : fixedSetpointV;
+  const panel = createPanelState(params.supply, params.panelThermal);
 
   let tS = 0;
   let pack: PackState = { soc: params.initialSoc, polarisationV: 0 };
@@ -157,7 +176,10 @@ export function createBench(params: BenchParams, seed: number, spanS: number): B
 
   function step(dtS: number): string[] {
     const irr = irradianceAt(tS);
-    const cap = capacityOf(params.supply, irr, setpointV);
+    const setpointV = setpointAt(tS);
+    panel.step(irr, dtS);
+    const supply = panel.supply();
+    const cap = capacityOf(supply, irr, setpointV);
     const th = thermistorAt(tS);
     const cmd = outputCommand(params.charger, charger, tS, th.tempC);
     const connected = contact.connected(tS);
@@ -189,7 +211,7 @@ export function createBench(params: BenchParams, seed: number, spanS: number): B
     const contactHeatW = iA * iA * contact.resistanceOhm(tS);
     const stepped = stepPack(params.pack, pack, iA, tempC, dtS);
     const heatW = stepped.heatW + params.thermal.chargerCouplingFraction * (lossW + contactHeatW);
-    const supplied = settle(params.supply, irr, pinW, setpointV);
+    const supplied = settle(supply, irr, pinW, setpointV);
 
     sourceWh += (supplied.pinW * dtS) / 3600;
     packWh += (stepped.powerW * dtS) / 3600;
@@ -229,8 +251,11 @@ export function createBench(params: BenchParams, seed: number, spanS: number): B
   function readings(): BenchReadings {
     const th = thermistorAt(tS);
     const irr = irradianceAt(tS);
-    const cap = capacityOf(params.supply, irr, setpointV);
+    const setpointV = setpointAt(tS);
+    const supply = panel.supply();
+    const cap = capacityOf(supply, irr, setpointV);
     const flowing = lastI > 0;
+    const truth = supply.kind === 'panel' ? panelMaxPowerPoint(supply.panel, irr) : null;
     return {
       tS,
       vbatV: measuredVbat(),
@@ -249,6 +274,9 @@ export function createBench(params: BenchParams, seed: number, spanS: number): B
       irradianceWPerM2: irr,
       sourceWh,
       packWh,
+      panelTempC: panel.tempC(),
+      truthMpp: truth ? { vV: truth.vV, pW: truth.pW } : null,
+      setpointV,
     };
   }
 

@@ -14,7 +14,7 @@ import { saturationCurrentForVocA, type PanelParams } from './solar';
 import type { SupplyParams } from './supply';
 import type { ThermalParams } from './thermal';
 import type { ProfileJson, Scenario } from './types';
-import type { CloudParams, DayParams } from './irradiance';
+import type { Cloud, CloudParams, DayParams } from './irradiance';
 import { BOARD_BUILDERS } from './board-scenarios';
 
 /** Every demo board reads a 10 kOhm B3435 NTC through a 10 kOhm pull-up on a 12-bit ADC. */
@@ -549,6 +549,161 @@ function weakPanelTimer(): Scenario {
   };
 }
 
+// --- source sweeps: a person at the input set-point trimmer ---------------------------------
+
+/**
+ * A generic 36-cell "12 V" panel of about 20 W (open circuit 21.6 V, maximum power near 17.5 V at
+ * 25 C and 1000 W/m2, the usual class figures, common practice); every parameter is invented for
+ * the demo. Its voltage falls 0.36 %/C of Voc and its current rises 0.05 %/C of Isc.
+ */
+const SWEEP_PANEL_VOC_V = 21.6;
+const SWEEP_PANEL_COEFF_PCT_PER_C = -0.36;
+/** The set point the demo board left the bench with, turned by eye on a cold morning (invented). */
+const SWEEP_START_SETPOINT_V = 18.4;
+function sweepPanel(): PanelParams {
+  return panel36(1.25);
+}
+
+/**
+ * The trimmer's path from `startS`: from the set point up, slowly down across the range, up, and
+ * back to `endV` (where the person leaves it).
+ */
+function trimmerPath(startS: number, fromV: number, endV: number): { tS: number; vV: number }[] {
+  return [
+    { tS: startS, vV: fromV },
+    { tS: startS + 60, vV: 19.3 },
+    { tS: startS + 390, vV: 13.8 },
+    { tS: startS + 720, vV: 19.3 },
+    { tS: startS + 780, vV: endV },
+  ];
+}
+
+const HALF_HOUR_S = 30 * 60;
+
+interface SweepDay {
+  durationS: number;
+  startClockH: number;
+  path: { tS: number; vV: number }[];
+  /** Seeded passing clouds per hour (0 = none), besides the fixed ones. */
+  cloudsPerHour: number;
+  clouds: Cloud[];
+}
+
+function sweepScenario(name: string, description: string, day: SweepDay): Scenario {
+  const profile: ProfileJson = {
+    name: 'boat house battery 12 V 100 Ah lead-acid on a 20 W panel (demo)',
+    chemistry: 'lead-acid',
+    cells: 6,
+    capacityAh: 100,
+    chargeCurrentA: 5,
+    terminationA: 1,
+    tempWindowC: [0, 45],
+    inputSetpointV: SWEEP_START_SETPOINT_V,
+    panelTempCoeffPctPerC: SWEEP_PANEL_COEFF_PCT_PER_C,
+    thermistor: DEMO_THERMISTOR,
+  };
+  return {
+    name,
+    description,
+    durationS: day.durationS,
+    profile,
+    reportsNtc: false,
+    reportsPanelTemp: true,
+    bench: {
+      ...bench(profile, {
+        pack: {
+          chemistry: 'lead-acid',
+          cells: 6,
+          capacityAh: 100,
+          seriesOhmPerCell: 0.0008,
+          polarisationOhmPerCell: 0.0005,
+          polarisationTauS: 300,
+          acceptanceVPerC: 0.55,
+          acceptanceKneeSoc: 0.85,
+          voltsPerKPerCell: 0,
+          shortedCells: 0,
+          selfDischargeA: 0,
+        },
+        initialSoc: 0.5,
+        thermal: {
+          heatCapacityJPerK: 24000,
+          thermalResistanceKPerW: 0.7,
+          ambientC: 10,
+          chargerCouplingFraction: 0.05,
+        },
+        supply: { kind: 'panel', panel: sweepPanel() },
+        day: solarDay({ sunriseH: 6, sunsetH: 20, peakWPerM2: 900 }, day.startClockH, {
+          perHour: day.cloudsPerHour,
+          minDurationS: 240,
+          maxDurationS: 900,
+          minDepth: 0.2,
+          maxDepth: 0.6,
+        }),
+      }),
+      panelThermal: {
+        ambientC: 10,
+        noctC: 45,
+        tauS: 300,
+        iscCoeffAPerC: 0.0005 * 1.25,
+        vocCoeffVPerC: (SWEEP_PANEL_COEFF_PCT_PER_C / 100) * SWEEP_PANEL_VOC_V,
+      },
+      setpointPath: day.path,
+      fixedClouds: day.clouds,
+    },
+    expected: {
+      summary:
+        'bulk (cc) limited by the panel throughout; at most a warn input-low while the set point is low',
+      phases: ['cc'],
+      alarms: [],
+      noCritical: true,
+      fault: false,
+    },
+  };
+}
+
+function sweepTrimmer(): Scenario {
+  return sweepScenario(
+    'sweep-trimmer',
+    'Boat house 12 V lead-acid battery on a 20 W panel at steady noon light; a person turns the input set point slowly from 19.3 V down to 13.8 V and back.',
+    {
+      durationS: HALF_HOUR_S,
+      startClockH: 12.5,
+      path: trimmerPath(300, SWEEP_START_SETPOINT_V, SWEEP_START_SETPOINT_V),
+      cloudsPerHour: 0,
+      clouds: [],
+    },
+  );
+}
+
+function sweepClouds(): Scenario {
+  return sweepScenario(
+    'sweep-clouds',
+    'The same set-point sweep as sweep-trimmer, with a cloud taking 40 % of the light during the upward turn.',
+    {
+      durationS: HALF_HOUR_S,
+      startClockH: 12.5,
+      path: trimmerPath(300, SWEEP_START_SETPOINT_V, SWEEP_START_SETPOINT_V),
+      cloudsPerHour: 0,
+      clouds: [{ startS: 800, durationS: 240, depth: 0.4 }],
+    },
+  );
+}
+
+function sweepDay(): Scenario {
+  // Three sweeps an hour and a half apart from late morning, each leaving the set point a little
+  // nearer the maximum; passing clouds in between (seeded).
+  const path = [
+    ...trimmerPath(600, SWEEP_START_SETPOINT_V, 17.6),
+    ...trimmerPath(600 + 5400, 17.6, 17.0),
+    ...trimmerPath(600 + 10800, 17.0, 16.7),
+  ];
+  return sweepScenario(
+    'sweep-day',
+    'The boat house panel from 10:00 to 14:00 with passing clouds; three set-point sweeps, each leaving the set point nearer the maximum.',
+    { durationS: 4 * 3600, startClockH: 10, path, cloudsPerHour: 1.2, clouds: [] },
+  );
+}
+
 const BUILDERS: Record<string, () => Scenario> = {
   'bench-liion-3s': benchLiion3s,
   'solar-lifepo4-4s': solarLifepo4,
@@ -561,6 +716,9 @@ const BUILDERS: Record<string, () => Scenario> = {
   'loose-connection': looseConnection,
   'overvoltage-drift': overvoltageDrift,
   'weak-panel-timer': weakPanelTimer,
+  'sweep-trimmer': sweepTrimmer,
+  'sweep-clouds': sweepClouds,
+  'sweep-day': sweepDay,
   ...BOARD_BUILDERS,
 };
 

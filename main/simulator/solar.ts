@@ -134,3 +134,26 @@ export function saturationCurrentForVocA(
     (Math.exp(vocStcV / (p.ideality * p.cellsInSeries * thermalVoltageV(p.cellTempC))) - 1)
   );
 }
+
+/** How a panel changes with cell temperature, in datasheet terms. */
+export interface PanelTemperatureParams {
+  /** Short-circuit current temperature coefficient, A/K (datasheets: about +0.05 %/K of Isc). */
+  iscCoeffAPerC: number;
+  /** Open-circuit voltage temperature coefficient, V/K (about -0.3 to -0.45 %/K of Voc, common practice). */
+  vocCoeffVPerC: number;
+}
+
+/**
+ * The panel at another cell temperature, the reference being `p.cellTempC`: the photocurrent
+ * moves with the current coefficient, and I_0 is chosen so the ideal open-circuit voltage moves
+ * with the voltage coefficient (the approach of Villalva, Gazoli & Ruppert, IEEE Trans. Power
+ * Electronics 24(5), 2009; from memory):
+ *   I_0(T) = I_L(T) / (exp((V_oc,ref + K_v dT) / (n N_s V_th(T))) - 1).
+ */
+export function panelAtTemperature(p: PanelParams, tempC: number, t: PanelTemperatureParams): PanelParams {
+  const dT = tempC - p.cellTempC;
+  const vocRefV = estimateVocV(p, 1000);
+  const photoCurrentStcA = p.photoCurrentStcA + t.iscCoeffAPerC * dT;
+  const warm = { ...p, cellTempC: tempC, photoCurrentStcA };
+  return { ...warm, saturationCurrentA: saturationCurrentForVocA(warm, vocRefV + t.vocCoeffVPerC * dT) };
+}

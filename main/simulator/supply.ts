@@ -92,6 +92,14 @@ export function settle(
   }
   const { openV, mppV } = panelCurve(s.panel, irradianceWPerM2);
   if (pinW <= 0 || openV <= setpointV) return { vinV: openV, iinA: 0, pinW: 0 };
+  if (setpointV < mppV) {
+    // A charger limited by its input pulls the panel down past the maximum power point until
+    // its input regulation holds it at the set point: the low-voltage side, not the mirror
+    // point of equal power above the maximum.
+    const at = panelPoint(s.panel, setpointV, irradianceWPerM2);
+    if (Math.abs(pinW - at.pW) <= 1e-6 * Math.max(at.pW, 1e-9))
+      return { vinV: at.vV, iinA: at.iA, pinW: at.pW };
+  }
   let lo = Math.max(mppV, setpointV);
   if (panelPoint(s.panel, lo, irradianceWPerM2).pW < pinW) {
     const at = panelPoint(s.panel, setpointV, irradianceWPerM2);
@@ -105,4 +113,10 @@ export function settle(
   }
   const at = panelPoint(s.panel, lo, irradianceWPerM2);
   return { vinV: at.vV, iinA: at.iA, pinW: at.pW };
+}
+
+/** The panel's true maximum power point at this light (the simulator's truth, cached like the rest). */
+export function panelMaxPowerPoint(panel: PanelParams, irradianceWPerM2: number): { vV: number; pW: number } {
+  const c = panelCurve(panel, irradianceWPerM2);
+  return { vV: c.mppV, pW: c.mppW };
 }

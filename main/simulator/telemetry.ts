@@ -69,8 +69,9 @@ function decimalsOf(intervalS: number): number {
   return 3;
 }
 
-function fieldKeys(useNtc: boolean): string[] {
-  return ['t', 'vbat', 'ibat', useNtc ? 'ntc' : 'temp', 'vin', 'iin', 'chg', 'flt', 'src'];
+function fieldKeys(useNtc: boolean, panelTemp: boolean): string[] {
+  const keys = ['t', 'vbat', 'ibat', useNtc ? 'ntc' : 'temp', 'vin', 'iin', 'chg', 'flt', 'src'];
+  return panelTemp ? [...keys, 'tpanel'] : keys;
 }
 
 /** What the firmware's ADCs report for the bench's true values. */
@@ -79,6 +80,7 @@ function measured(
   useNtc: boolean,
   adcMax: number | null,
   noise: Rng,
+  panelTemp = false,
 ): Record<string, LineValue> {
   const ibat = r.ibatA === 0 ? 0 : r.ibatA + noise.normal(0.0015);
   const values: Record<string, LineValue> = {
@@ -99,6 +101,8 @@ function measured(
   values.chg = r.chg;
   values.flt = r.flt;
   values.src = r.src;
+  // A panel temperature sensor, printed as the extra channel `tpanel` by boards that have one.
+  if (panelTemp && r.panelTempC !== null) values.tpanel = r.panelTempC + noise.normal(0.1);
   return values;
 }
 
@@ -112,9 +116,10 @@ export function createTelemetryRun(scenario: Scenario, options: TelemetryOptions
   const adcMax = th.pullupOhm !== undefined || th.pulldownOhm !== undefined ? (th.adcMax ?? 4095) : null;
   const format = {
     checksum: options.checksum === true,
-    digits: { t: decimalsOf(options.sampleIntervalS), vbat: 3, ibat: 3, temp: 1, vin: 2, iin: 3 },
+    digits: { t: decimalsOf(options.sampleIntervalS), vbat: 3, ibat: 3, temp: 1, vin: 2, iin: 3, tpanel: 1 },
   };
-  const keys = fieldKeys(useNtc);
+  const panelTemp = scenario.reportsPanelTemp === true;
+  const keys = fieldKeys(useNtc, panelTemp);
 
   let used = false;
   // One bench, one pass: a second pass would continue from where the first one stopped.
@@ -140,7 +145,7 @@ export function createTelemetryRun(scenario: Scenario, options: TelemetryOptions
     const emit = (): TimedLine => {
       const r = bench.readings();
       return {
-        text: formatTelemetryLine(measured(r, useNtc, adcMax, noise), options.shape, format),
+        text: formatTelemetryLine(measured(r, useNtc, adcMax, noise, panelTemp), options.shape, format),
         simS: r.tS,
       };
     };

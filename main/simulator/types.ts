@@ -20,6 +20,8 @@ export interface ProfileJson {
   preconditionA?: number;
   preconditionTimeoutMin?: number;
   thermistor?: ThermistorModel;
+  /** The panel's voltage temperature coefficient, %/C (solar scenarios with a panel sensor). */
+  panelTempCoeffPctPerC?: number;
   /** What the board was designed to do (board checks). */
   expect?: ExpectRanges;
 }
@@ -47,6 +49,8 @@ export interface Scenario {
   bench: BenchParams;
   /** The firmware prints raw thermistor counts (`ntc`) instead of `temp` unless told otherwise. */
   reportsNtc: boolean;
+  /** The firmware also prints the panel temperature as the extra channel `tpanel`. */
+  reportsPanelTemp?: boolean;
   /** The board under test's id, printed by the firmware at boot (`# board=… fw=…`). */
   board?: string;
   expected: ExpectedOutcome;

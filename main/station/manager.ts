@@ -517,6 +517,10 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       if (!st.source.send) throw new StationConfigError(`${st.label}: this source cannot send lines`);
       await st.source.send(text, ending);
     },
+    profileJsonOf(stationId: string): unknown {
+      const st = stations.get(stationId);
+      return st ? st.profileJson : null;
+    },
     async setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot> {
       const st = must(stationId);
       setBoard(st, board);

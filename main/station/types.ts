@@ -50,6 +50,8 @@ export interface StationManager extends EventEmitter<StationManagerEvents> {
   startBatch(batchId: string): Promise<StationSnapshot[]>;
   /** Replace a station's profile: closes the current run and starts a new one. */
   setProfile(stationId: string, profile: unknown): Promise<StationSnapshot>;
+  /** The profile JSON the station runs with, as written or assumed (null for no such station). */
+  profileJsonOf?(stationId: string): unknown;
   /** Stop every station, close their runs cleanly, flush the recorder. */
   close(): Promise<void>;
 }

@@ -133,6 +133,10 @@ export const profileSchema = z.strictObject({
   minusDeltaVPerCell: positive().max(1).optional(),
   dTdtCPerMin: positive().max(100).optional(),
   tempCompVPerCPerCell: finite().min(-0.1).max(0).optional(),
+  // Solar source: the panel's voltage temperature coefficient in %/C of its datasheet (about
+  // -0.3 to -0.45 for crystalline silicon, common practice); the Sweep view uses it to say how
+  // the best set point moves with panel temperature (extra channel `tpanel`).
+  panelTempCoeffPctPerC: finite().min(-2).max(2).nullable().optional(),
   fields: fieldsSchema.optional(),
   thermistor: thermistorSchema.optional(),
   expect: expectSchema.optional(),
@@ -425,6 +429,7 @@ function resolve(input: ProfileInput): ProfileResult {
     timerMin,
     tempWindowC: [...pick('tempWindowC', d.tempWindowC)] as [number, number],
     inputSetpointV: input.inputSetpointV ?? null,
+    panelTempCoeffPctPerC: input.panelTempCoeffPctPerC ?? null,
     regulationVPerCell: pick('regulationVPerCell', d.regulationVPerCell),
     floatVPerCell: pick('floatVPerCell', d.floatVPerCell),
     overvoltageVPerCell: pick('overvoltageVPerCell', d.overvoltageVPerCell),

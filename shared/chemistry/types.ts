@@ -21,6 +21,8 @@ export interface ResolvedProfile {
   tempWindowC: [number, number];
   /** MPPT / input regulation set point of the source; null = not set. */
   inputSetpointV: number | null;
+  /** Solar panel voltage temperature coefficient, %/C; null or absent = not given. */
+  panelTempCoeffPctPerC?: number | null;
   regulationVPerCell: number;
   /** Lead-acid float voltage per cell at 25 C; null for chemistries without float. */
   floatVPerCell: number | null;

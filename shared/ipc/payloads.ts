@@ -5,6 +5,7 @@
 import type { ResolvedProfile } from '../chemistry/types';
 import type { RunState } from '../engine/types';
 import type { RejectReason } from '../telemetry/types';
+import type { SweepReport } from '../engine/sweep/analyse';
 
 /** State of a line source (serial port, simulator, replay). */
 export type SourceStatus =
@@ -79,4 +80,13 @@ export interface OverviewBucket {
   t1S: number;
   count: number;
   values: Partial<Record<SeriesField, { min: number; max: number; mean: number }>>;
+}
+
+/** The live source sweep of one station (Sweep view): its recent P–V points and the engine's report. */
+export interface SweepPayload {
+  stationId: string;
+  /** Recent source samples, oldest first: run time, volts, watts (columns). */
+  points: { tS: number[]; vV: number[]; pW: number[] };
+  /** The engine's analysis of those samples (the fit may lag the newest points by a few seconds). */
+  report: SweepReport;
 }

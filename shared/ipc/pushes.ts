@@ -30,5 +30,7 @@ export type PushEnvelope =
   | { push: 'problem'; data: { stationId: string | null; message: string; level: 'warn' | 'critical' } }
   | { push: 'alarm-ack'; data: { stationId: string; code: string; t: number } }
   | { push: 'command'; data: AppCommand }
+  /** SweepPayload (shared/ipc/payloads.ts): the live source sweep of a watched station. */
+  | { push: 'sweep'; data: unknown }
   /** A station's board checks, recomputed as its run goes on (CheckReport of shared/engine/checks). */
   | { push: 'checks'; data: { stationId: string; runId: number | null; report: unknown } };

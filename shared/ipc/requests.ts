@@ -46,6 +46,12 @@ export const requestSchemas = {
   'stations.history': z.object({ stationId, fromT: z.number().min(0).optional() }).strict(),
   'stations.ackAlarm': z.object({ stationId, code: z.string().max(64), t: z.number() }).strict(),
   'stations.diagnose': z.object({ stationId, atT: z.number().min(0).optional() }).strict(),
+  /** Sweep view: start (or stop) the live source sweep of a station; answered with the latest. */
+  'stations.sweep': z.object({ stationId, watch: z.boolean() }).strict(),
+  /** Sweep view: write a found voltage into the station's profile as its input set point. */
+  'stations.setInputSetpoint': z
+    .object({ stationId, inputSetpointV: z.number().positive().max(1000) })
+    .strict(),
   /** The board under test: typed or scanned id (a new id starts a new run), operator, batch. */
   'stations.setBoard': z
     .object({

@@ -14,6 +14,7 @@ const BENCHES = [
   'chart-bench.ts',
   'firmware-size-bench.ts',
   'unplug-bench.ts',
+  'sweep-bench.ts',
   'checks-bench.ts',
   'network-bench.ts',
 ];

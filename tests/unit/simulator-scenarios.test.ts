@@ -17,7 +17,7 @@ import type { Sample } from '@shared/telemetry/types';
 
 const PROFILE_DIR = join(__dirname, '..', 'fixtures', 'profiles');
 
-test('the sixteen scenarios are listed with one-line descriptions', () => {
+test('the nineteen scenarios are listed with one-line descriptions', () => {
   const list = listScenarios();
   assert.deepEqual(
     list.map((s) => s.name),
@@ -33,6 +33,9 @@ test('the sixteen scenarios are listed with one-line descriptions', () => {
       'loose-connection',
       'overvoltage-drift',
       'weak-panel-timer',
+      'sweep-trimmer',
+      'sweep-clouds',
+      'sweep-day',
       'board-in-spec',
       'board-sense-low',
       'board-sense-high',
