@@ -25,6 +25,14 @@ export function minSpansFor(profile: ResolvedProfile | null): Partial<Record<Plo
 }
 
 const DIGITS: Record<PlotField, number> = { vbatV: 3, ibatA: 3, tempC: 1, vinV: 2, powerW: 2 };
+/** Short names, so the readout stays one line at 1280 px (the chart captions carry the long ones). */
+const SHORT: Record<PlotField, string> = {
+  vbatV: 'Pack',
+  ibatA: 'Current',
+  tempC: 'Temp.',
+  vinV: 'Source',
+  powerW: 'Source power',
+};
 
 /** "At 1:23 — Pack voltage 12.412 V · Charge current 0.981 A · …" as a definition list. */
 export function renderReadout(
@@ -42,7 +50,7 @@ export function renderReadout(
     h(
       'span',
       { class: 'readout-item', 'data-field': v.field },
-      h('span', { class: 'readout-label' }, `${v.label} `),
+      h('span', { class: 'readout-label', title: v.label }, `${SHORT[v.field]} `),
       h('strong', {}, v.value === null ? '–' : `${v.value.toFixed(DIGITS[v.field])} ${v.unit}`),
     ),
   );

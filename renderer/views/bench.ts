@@ -458,7 +458,13 @@ export class BenchView implements View {
     this.panel.setMarkers(alarmMarkers(events));
   }
 
+  private pickKey: string | null = null;
+
   private renderPickBar(): void {
+    // Redrawn only when the mark or the mode changes, so its buttons stay put under a click.
+    const key = JSON.stringify([this.pickT, this.mode.kind]);
+    if (key === this.pickKey) return;
+    this.pickKey = key;
     if (this.pickT === null) {
       this.pickBar.replaceChildren(
         h(

@@ -98,7 +98,8 @@ test('an alarm reaches a person on every view', { timeout: 300_000 }, async (t) 
     assert.deepEqual(await order(), [healthyId, stationId]);
     // Each sparkline says what it shows (Rack tiles are read from across the room).
     assert.match(
-      (await page.locator(`#view-rack .tile[data-station="${healthyId}"] .tile-spark-label`).textContent()) ?? '',
+      (await page.locator(`#view-rack .tile[data-station="${healthyId}"] .tile-spark-label`).textContent()) ??
+        '',
       /^Pack voltage, last \d+ (min|h): \d+\.\d\d–\d+\.\d\d V$/,
     );
     await page.locator(`#view-rack .tile[data-station="${healthyId}"]`).hover();

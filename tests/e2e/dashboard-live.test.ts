@@ -140,7 +140,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
       );
   });
 
-  await t.test('a bad profile value is refused with the message that names the key', async () => {
+  await t.test('a bad profile value is refused, the message naming the field by its label', async () => {
     await openViewByKey(page, 'connect');
     const field = page.locator('#profile-chargeCurrentA');
     await field.fill('-2');
@@ -148,7 +148,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     await page.waitForFunction(
       () => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? '') !== '',
     );
-    // The message is the backend's own refusal, word for word (shared/chemistry/profile).
+    // The backend's own refusal (shared/chemistry/profile), with the key replaced by the form's label.
     const expected = parseProfile({
       name: 'garden-sensor 3S Li-ion',
       chemistry: 'li-ion',
@@ -162,9 +162,12 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     assert.equal(expected.ok, false);
     if (expected.ok) return;
     assert.equal(expected.key, 'chargeCurrentA');
-    assert.equal(await error.textContent(), expected.error);
+    assert.equal(await error.textContent(), expected.error.replace(/^chargeCurrentA:/, 'Charge current:'));
     assert.equal(await field.getAttribute('aria-invalid'), 'true');
-    assert.match((await page.locator('#profile-error').textContent()) ?? '', /chargeCurrentA/);
+    assert.match(
+      (await page.locator('#profile-error').textContent()) ?? '',
+      /^Profile refused: Charge current:/,
+    );
     await page.locator('#add-station').click();
     await page.waitForFunction(() =>
       /Not added/.test(document.querySelector('#view-connect .connect-status')?.textContent ?? ''),
