@@ -8,6 +8,7 @@ import { button, h } from '../dom';
 import { formatClock, formatDuration, formatNumber } from '../format';
 import type { Navigator, View } from '../router';
 import { errorText, readRuns, readStation, type RunListRow } from '../wire';
+import { filterRuns, type RunFilter } from './run-filter';
 
 const REPLAY_SPEEDS: { label: string; value: number | 'max' }[] = [
   { label: '1× (as recorded)', value: 1 },
@@ -21,6 +22,12 @@ export class RunsView implements View {
   private readonly tableHost = h('div', { class: 'runs-table-host' });
   private readonly speed = h('select', { id: 'replay-speed' });
   private runs: RunListRow[] = [];
+  private filter: RunFilter = { text: '', from: '', to: '', ended: '' };
+  private readonly filterBar = h('div', {
+    class: 'runs-filter',
+    role: 'search',
+    'aria-label': 'Search and filter runs',
+  });
   private confirming: number | null = null;
 
   constructor(
@@ -47,8 +54,46 @@ export class RunsView implements View {
           this.speed,
         ),
       ),
+      this.filterBar,
       this.status,
       this.tableHost,
+    );
+    this.buildFilterBar();
+  }
+
+  private buildFilterBar(): void {
+    const text = h('input', {
+      id: 'runs-search',
+      type: 'search',
+      placeholder: 'station, profile, board, chemistry, alarm…',
+      autocomplete: 'off',
+    });
+    const from = h('input', { id: 'runs-from', type: 'date' });
+    const to = h('input', { id: 'runs-to', type: 'date' });
+    const ended = h('select', { id: 'runs-ended' });
+    for (const [value, words] of [
+      ['', 'any end'],
+      ['completed', 'completed'],
+      ['stopped', 'stopped'],
+      ['interrupted', 'interrupted'],
+      ['profile-changed', 'profile changed'],
+      ['recording', 'still recording'],
+    ])
+      ended.append(h('option', { value }, words));
+    const apply = () => {
+      this.filter = { text: text.value, from: from.value, to: to.value, ended: ended.value };
+      this.renderTable();
+    };
+    for (const el of [text, from, to, ended]) el.addEventListener('input', apply);
+    this.filterBar.append(
+      h('label', { for: 'runs-search', class: 'field-label' }, 'Search'),
+      text,
+      h('label', { for: 'runs-from', class: 'field-label' }, 'From'),
+      from,
+      h('label', { for: 'runs-to', class: 'field-label' }, 'To'),
+      to,
+      h('label', { for: 'runs-ended', class: 'field-label' }, 'End'),
+      ended,
     );
   }
 
@@ -86,7 +131,12 @@ export class RunsView implements View {
       ),
     );
     const body = h('tbody');
-    for (const run of this.runs) body.append(this.row(run));
+    const shown = filterRuns(this.runs, this.filter);
+    for (const run of shown) body.append(this.row(run));
+    if (shown.length === 0)
+      body.append(
+        h('tr', {}, h('td', { colspan: 9, class: 'quiet' }, 'No run matches the search and filters.')),
+      );
     this.tableHost.replaceChildren(
       h(
         'table',
@@ -135,6 +185,10 @@ export class RunsView implements View {
         button('Report', () => void this.report(run), {
           class: 'btn btn-small',
           'aria-label': label('Save the Run report of'),
+        }),
+        button('PDF', () => void this.reportPdf(run), {
+          class: 'btn btn-small',
+          'aria-label': label('Save the Run report as PDF of'),
         }),
         button(
           'Delete…',
@@ -213,6 +267,15 @@ export class RunsView implements View {
     );
   }
 
+  private async reportPdf(run: RunListRow): Promise<void> {
+    await this.deliver(
+      run,
+      'Run report PDF',
+      () => this.api.request('runs.report', { runId: run.id, pdf: true }),
+      `taperline-run-${run.id}-report.pdf`,
+    );
+  }
+
   /** Web mode answers with a URL (offered as a download link); Electron saves and says where. */
   private async deliver(
     run: RunListRow,
@@ -231,7 +294,7 @@ export class RunsView implements View {
             href,
             download: fileName,
             class: 'download-link',
-            id: what === 'CSV' ? 'csv-link' : 'report-link',
+            id: what === 'CSV' ? 'csv-link' : what === 'Run report PDF' ? 'pdf-link' : 'report-link',
           },
           `Download the ${what} of run ${run.id}`,
         );

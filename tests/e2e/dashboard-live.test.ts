@@ -208,7 +208,14 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
       string
     >[];
     assert.ok(rows.length > 10, `CSV rows: ${rows.length}`);
-    assert.ok('vbat (V)' in rows[0] && 't (s)' in rows[0], `CSV columns: ${Object.keys(rows[0]).join(', ')}`);
+    assert.ok(
+      'vbat (V)' in rows[0] && 't (s since start)' in rows[0],
+      `CSV columns: ${Object.keys(rows[0]).join(', ')}`,
+    );
+    // ISO 8601 with the zone offset, and the same instant as the receive time in seconds.
+    const iso = String(rows[0]['time (ISO 8601)']);
+    assert.match(iso, /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}[+-]\d\d:\d\d$/);
+    assert.ok(Math.abs(Date.parse(iso) / 1000 - Number(rows[0]['rx time (s since 1970)'])) < 0.001);
     // A 3S Li-ion pack between precondition and full charge: 3 x 2.5..4.3 V/cell
     // (Battery University BU-409: regulation 4.20 V/cell; ElectroDragon wiki: precondition below about 3.0 V/cell).
     const vbat = rows.map((r) => Number(r['vbat (V)'])).filter(Number.isFinite);
