@@ -479,6 +479,14 @@ export class BenchView implements View {
     this.pickBar.replaceChildren(
       h('span', { class: 'pick-text' }, `Marked ${formatRunTime(t)}`),
       button('Diagnose here', () => this.openDiagnosis(t), { class: 'btn btn-small', id: 'diagnose-here' }),
+      ...(this.mode.kind === 'live'
+        ? [
+            button('Lines around here', () => this.openLinesAround(t), {
+              class: 'btn btn-small',
+              id: 'lines-here',
+            }),
+          ]
+        : []),
       button(
         'Clear mark',
         () => {
@@ -489,6 +497,15 @@ export class BenchView implements View {
         { class: 'btn btn-small btn-quiet' },
       ),
     );
+  }
+
+  /** The Line feed at the raw lines received around run time t (live stations only). */
+  private openLinesAround(t: number): void {
+    const model = this.liveModel();
+    if (!model) return;
+    // Counted in samples back from the newest: right whatever the clocks (a sped-up simulator too).
+    const samplesBack = model.series.samplesAfterNearest(t);
+    this.nav.open({ view: 'feed', stationId: model.view.id, samplesBack, aroundLabel: formatDuration(t) });
   }
 
   private openDiagnosis(atT: number): void {

@@ -110,6 +110,23 @@ test('Bench at 1280×720 during CC: outlook, crosshair, spans, fit', { timeout: 
     await page.mouse.move(5, 400);
     await readout.locator('.readout-time', { hasText: /^Marked / }).waitFor();
   });
+
+  await t.test('from the marked time, the raw lines around it in the Line feed', async () => {
+    await page.locator('#lines-here').click();
+    await page.locator('#view-feed').waitFor({ state: 'visible' });
+    const focus = page.locator('#view-feed .feed-row.feed-focus');
+    await focus.waitFor();
+    assert.ok(
+      (await page.locator('#view-feed .feed-row.feed-around').count()) >= 3,
+      'a few seconds of lines',
+    );
+    assert.match(
+      (await page.locator('.feed-around-note').textContent()) ?? '',
+      /^Lines around \d+:\d\d:\d\d .*paused/,
+    );
+    assert.equal(await page.locator('#feed-pause').getAttribute('aria-pressed'), 'true');
+    await screenshot(page, 'feed-around-mark');
+  });
 });
 
 test(
