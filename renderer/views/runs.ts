@@ -9,6 +9,7 @@ import { formatClock, formatDuration, formatNumber } from '../format';
 import type { Navigator, View } from '../router';
 import { errorText, readRuns, readStation, type RunListRow } from '../wire';
 import { filterRuns, type RunFilter } from './run-filter';
+import { RunOverlay, type OverlayAlign } from './run-overlay';
 
 const REPLAY_SPEEDS: { label: string; value: number | 'max' }[] = [
   { label: '1× (as recorded)', value: 1 },
@@ -22,6 +23,11 @@ export class RunsView implements View {
   private readonly tableHost = h('div', { class: 'runs-table-host' });
   private readonly speed = h('select', { id: 'replay-speed' });
   private runs: RunListRow[] = [];
+  /** Runs ticked for the overlay. */
+  private readonly compare = new Set<number>();
+  private readonly overlay: RunOverlay;
+  private readonly alignSelect = h('select', { id: 'overlay-align' });
+  private readonly overlayBtn: HTMLButtonElement;
   private filter: RunFilter = { text: '', from: '', to: '', ended: '' };
   private readonly filterBar = h('div', {
     class: 'runs-filter',
@@ -36,6 +42,16 @@ export class RunsView implements View {
     private readonly nav: Navigator,
   ) {
     REPLAY_SPEEDS.forEach((s, i) => this.speed.append(h('option', { value: String(i) }, s.label)));
+    this.overlay = new RunOverlay(api);
+    this.alignSelect.append(
+      h('option', { value: 'start' }, 'aligned at the start'),
+      h('option', { value: 'cv' }, 'aligned at the cc→cv change'),
+    );
+    this.overlayBtn = button('Overlay ticked runs', () => void this.showOverlay(), {
+      class: 'btn',
+      id: 'overlay-runs',
+    });
+    this.overlayBtn.disabled = true;
     root.append(
       h(
         'div',
@@ -55,8 +71,16 @@ export class RunsView implements View {
         ),
       ),
       this.filterBar,
+      h(
+        'div',
+        { class: 'runs-tools' },
+        this.overlayBtn,
+        h('label', { for: 'overlay-align', class: 'field-label' }, 'Overlay'),
+        this.alignSelect,
+      ),
       this.status,
       this.tableHost,
+      this.overlay.root,
     );
     this.buildFilterBar();
   }
@@ -126,6 +150,7 @@ export class RunsView implements View {
     const head = h(
       'tr',
       {},
+      h('th', { scope: 'col' }, 'Compare'),
       ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map(
         (c) => h('th', { scope: 'col' }, c),
       ),
@@ -135,7 +160,7 @@ export class RunsView implements View {
     for (const run of shown) body.append(this.row(run));
     if (shown.length === 0)
       body.append(
-        h('tr', {}, h('td', { colspan: 9, class: 'quiet' }, 'No run matches the search and filters.')),
+        h('tr', {}, h('td', { colspan: 10, class: 'quiet' }, 'No run matches the search and filters.')),
       );
     this.tableHost.replaceChildren(
       h(
@@ -202,9 +227,22 @@ export class RunsView implements View {
         ),
       );
     }
+    const tick = h('input', {
+      type: 'checkbox',
+      class: 'compare-box',
+      'aria-label': `Compare run ${run.id}`,
+      checked: this.compare.has(run.id),
+    });
+    tick.addEventListener('change', () => {
+      if (tick.checked) this.compare.add(run.id);
+      else this.compare.delete(run.id);
+      this.overlayBtn.disabled = this.compare.size < 2;
+      this.overlayBtn.textContent = `Overlay ticked runs (${this.compare.size})`;
+    });
     return h(
       'tr',
       { 'data-run': run.id },
+      h('td', {}, tick),
       h('th', { scope: 'row' }, String(run.id)),
       h('td', {}, run.stationLabel || run.stationId),
       h('td', {}, `${run.profileName} (${run.chemistry})`),
@@ -215,6 +253,12 @@ export class RunsView implements View {
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
       h('td', {}, actions),
     );
+  }
+
+  private async showOverlay(): Promise<void> {
+    const runs = this.runs.filter((r) => this.compare.has(r.id)).sort((a, b) => a.startRxS - b.startRxS);
+    await this.overlay.show(runs, this.alignSelect.value as OverlayAlign);
+    this.overlay.root.scrollIntoView({ block: 'start' });
   }
 
   private cancelDelete(runId: number): void {
