@@ -19,6 +19,8 @@ import {
   readSamples,
   readStation,
   readStations,
+  readChecks,
+  type ChecksView,
   type FeedRow,
   type PlotSample,
   type StationView,
@@ -43,6 +45,8 @@ export class StationModel {
   readonly events: EngineEvent[] = [];
   readonly feed = new FeedRing();
   acks: AlarmAckRef[] = [];
+  /** The run's board checks as the backend last computed them (null: none, or no expect). */
+  checks: ChecksView | null = null;
   /** Pushes that arrived before the history reply: applied after it, so time stays ordered. */
   private early: { batches: SampleBatch[]; events: EngineEvent[] } | null = { batches: [], events: [] };
 
@@ -174,6 +178,7 @@ type StoreEvents = {
   lines: [stationId: string, rows: FeedRow[]];
   problem: [Problem];
   connection: [ConnectionState];
+  checks: [stationId: string];
 };
 
 export class Store extends Hub<StoreEvents> {
@@ -306,6 +311,18 @@ export class Store extends Hub<StoreEvents> {
       case 'problem':
         this.addProblem(push.data);
         return;
+      case 'checks': {
+        const model = this.stations.get(push.data.stationId);
+        if (!model) return;
+        try {
+          model.checks = readChecks(push.data.report);
+        } catch {
+          return;
+        }
+        this.emit('checks', model.view.id);
+        this.emit('stations');
+        return;
+      }
       case 'alarm-ack': {
         const model = this.stations.get(push.data.stationId);
         if (!model) return;

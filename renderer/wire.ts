@@ -73,6 +73,29 @@ export function readFeedLines(raw: unknown): FeedRow[] {
   return z.array(feedLineSchema).parse(raw) as FeedRow[];
 }
 
+const checkSchema = z.looseObject({
+  code: z.string(),
+  measured: z.number().nullable(),
+  min: z.number(),
+  max: z.number(),
+  unit: z.string(),
+  result: z.enum(['pass', 'fail', 'not-measured']),
+  note: z.string(),
+});
+const checksSchema = z.looseObject({
+  verdict: z.enum(['pass', 'fail', 'incomplete']),
+  checks: z.array(checkSchema),
+  board: z.string().nullable(),
+  fault: z.looseObject({ t: z.number(), what: z.string() }).nullable().optional(),
+});
+
+/** A run's board checks (the `taperline check` JSON) as the views read it. */
+export type ChecksView = z.infer<typeof checksSchema>;
+
+export function readChecks(raw: unknown): ChecksView | null {
+  return raw === null || raw === undefined ? null : checksSchema.parse(raw);
+}
+
 const runRowSchema = z.looseObject({
   id: z.number(),
   stationId: z.string(),
@@ -87,6 +110,11 @@ const runRowSchema = z.looseObject({
   wh: z.number(),
   lines: z.number(),
   rejected: z.number(),
+  boardId: z.string().nullish(),
+  operator: z.string().nullish(),
+  firmware: z.string().nullish(),
+  batchId: z.string().nullish(),
+  verdict: z.enum(['pass', 'fail', 'incomplete']).nullish(),
 });
 
 export type RunListRow = RunRow;

@@ -3,28 +3,35 @@
  * command line and the API service. `taperline serve` and the Electron backend child both
  * start exactly this, so the desktop app and the web mode cannot drift apart.
  */
-import { readValidatedProfileJson } from '../cli/profile-file';
+import type { StationConfig } from '@shared/sources/schemas';
 import { openRecorder, defaultDbPath } from '../recorder';
 import type { Recorder } from '../recorder/types';
-import { createStationManager } from '../station';
-import { defaultMakeSource } from '../station/sources';
-import type { StationConfig, StationManager, StationSnapshot } from '../station/types';
-import { getScenario } from '../simulator/scenarios';
-import { parseReplayScenario, replayScenarioName, ReplaySource } from './replay-source';
+import { createStationManager, MAX_STATIONS } from '../station';
+import type { StationManager, StationSnapshot } from '../station/types';
+import { InputFileError } from './input-file-error';
+import { keepSavedRack, readSavedRack, savedRackPath } from './rack';
 import { createAppService, RequestError, type AppService, type AppServiceOptions } from './service';
-import { combineStationManagers } from './station-set';
+import { startSubscriber, type Subscriber } from '../mqtt/subscriber';
 
 export interface BackendOptions {
   /** Recording database; default the user's data folder. null = do not record. */
   dbPath?: string | null;
-  /** Start a simulated station running this scenario. */
-  simulate?: { scenario: string; speedup?: number };
-  /** Start a station on a serial port. `profilePath` is a profile JSON file. */
-  serial?: { path: string; baudRate: number; profilePath: string };
+  /** Stations to start (from `--station-port`, `--simulate` and a rack file; see app/rack.ts). */
+  stations?: StationConfig[];
+  /**
+   * Bring back the stations of the rack saved next to the database (default true), and keep
+   * saving it. Stations given in `stations` with an id of the saved rack are not started twice.
+   */
+  savedRack?: boolean;
+  /** Show every station published under this broker URL and prefix (`mqtt://HOST[:PORT]/PREFIX`). */
+  subscribe?: string;
   exportMode?: AppServiceOptions['exportMode'];
   writeCsvFile?: AppServiceOptions['writeCsvFile'];
   writeReportFile?: AppServiceOptions['writeReportFile'];
 }
+
+/** Remote stations a serve may show besides its own (four benches of 60). */
+export const MAX_REMOTE_STATIONS = 240;
 
 export interface Backend {
   stations: StationManager;
@@ -40,24 +47,25 @@ export class BackendStartError extends Error {
 }
 
 export async function startBackend(options: BackendOptions): Promise<Backend> {
-  const recorder = options.dbPath === null ? null : openRecorder(options.dbPath ?? defaultDbPath());
+  const dbPath = options.dbPath === null ? null : (options.dbPath ?? defaultDbPath());
+  const rackPath = dbPath !== null && options.savedRack !== false ? savedRackPath(dbPath) : null;
+  let saved: StationConfig[] = [];
+  try {
+    if (rackPath) saved = readSavedRack(rackPath);
+  } catch (err) {
+    throw new BackendStartError(
+      `${(err as Error).message}. Fix or delete that file, or start with --fresh to ignore it`,
+    );
+  }
+  const recorder = dbPath === null ? null : openRecorder(dbPath);
   const now = () => Date.now() / 1000;
-  const live = createStationManager({ recorder, now });
-  // Replays read a recorded run again; they run in a manager that does not record.
-  const replays = createStationManager({
-    recorder: null,
+  let subscriber: Subscriber | null = null;
+  const stations = createStationManager({
+    recorder,
     now,
-    makeSource: (config) => {
-      if (config.kind !== 'simulator') return defaultMakeSource(config, { now });
-      const replay = parseReplayScenario(config.scenario);
-      if (!replay) return defaultMakeSource(config, { now });
-      if (!recorder) throw new Error('replaying needs the recording database, and recording is off');
-      return new ReplaySource(recorder, replay.runId, replay.max ? null : (config.speedup ?? 1), now);
-    },
+    remote: { sourceFor: (config) => subscriber!.sourceFor(config) },
+    maxStations: MAX_STATIONS + (options.subscribe ? MAX_REMOTE_STATIONS : 0),
   });
-  const isReplay = (config: StationConfig) =>
-    config.source.kind === 'simulator' && parseReplayScenario(config.source.scenario) !== null;
-  const stations = combineStationManagers(live, replays, isReplay);
   let replayCount = 0;
   const replayRun = async (runId: number, speed: number | 'max'): Promise<StationSnapshot> => {
     if (!recorder) throw new RequestError('replaying needs the recording database, and recording is off');
@@ -67,12 +75,10 @@ export async function startBackend(options: BackendOptions): Promise<Backend> {
     return stations.addStation({
       id: `replay-${runId}-${replayCount}`,
       label: `Replay of run ${runId} (${run.stationLabel || run.stationId})`,
-      source: {
-        kind: 'simulator',
-        scenario: replayScenarioName(runId, speed),
-        speedup: speed === 'max' ? undefined : speed,
-      },
+      source: { kind: 'replay', runId, speed },
       profile: recorder.profileOf(runId),
+      // A replay reads a recorded run again: it must not record a copy of it.
+      record: false,
     });
   };
   const service = createAppService({
@@ -83,16 +89,29 @@ export async function startBackend(options: BackendOptions): Promise<Backend> {
     writeCsvFile: options.writeCsvFile,
     writeReportFile: options.writeReportFile,
   });
+  const keeper = rackPath
+    ? keepSavedRack(stations, rackPath, (message) =>
+        stations.emit('problem', { stationId: null, message, level: 'warn' }),
+      )
+    : null;
   let stopped: Promise<void> | null = null;
   const stop = () =>
     (stopped ??= (async () => {
+      // Saved before the stations close, so the saved rack keeps them for the next start.
+      keeper?.save();
+      keeper?.stop();
+      await subscriber?.stop();
       service.close();
       await stations.close();
       recorder?.close();
     })());
 
   try {
-    for (const config of initialStations(options)) await stations.addStation(config);
+    const savedIds = new Set(saved.map((c) => c.id));
+    const fresh = (options.stations ?? []).filter((c) => !savedIds.has(c.id));
+    for (const config of [...saved, ...fresh]) await stations.addStation(config);
+    if (options.subscribe) subscriber = startSubscriber(options.subscribe, stations);
+    keeper?.save();
   } catch (err) {
     await stop();
     throw err instanceof BackendStartError ? err : new BackendStartError((err as Error).message);
@@ -100,30 +119,4 @@ export async function startBackend(options: BackendOptions): Promise<Backend> {
   return { stations, recorder, service, stop };
 }
 
-function initialStations(options: BackendOptions): StationConfig[] {
-  const configs: StationConfig[] = [];
-  if (options.simulate) {
-    let scenario;
-    try {
-      scenario = getScenario(options.simulate.scenario);
-    } catch (err) {
-      throw new BackendStartError((err as Error).message);
-    }
-    configs.push({
-      id: `sim-${scenario.name}`.slice(0, 64),
-      label: `Simulated: ${scenario.name}`,
-      source: { kind: 'simulator', scenario: scenario.name, speedup: options.simulate.speedup },
-      profile: scenario.profile,
-    });
-  }
-  if (options.serial) {
-    configs.push({
-      id: 'bench-1',
-      label: options.serial.path,
-      source: { kind: 'serial', path: options.serial.path, baudRate: options.serial.baudRate },
-      // Throws a one-line error naming the file (or the bad key); startBackend reports it.
-      profile: readValidatedProfileJson(options.serial.profilePath),
-    });
-  }
-  return configs;
-}
+export { InputFileError };

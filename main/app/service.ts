@@ -16,6 +16,8 @@ import { runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
+import { LiveChecks } from './live-checks';
+import { runChecks } from '@shared/engine/checks';
 
 /** How exports and reports leave the app. */
 export type ExportMode =
@@ -70,6 +72,26 @@ export function createAppService(options: AppServiceOptions): AppService {
     return snapshot ? view(snapshot) : null;
   });
 
+  const liveChecks = new LiveChecks(() => Date.now());
+  const judgeLive = (stationId: string) => {
+    const snapshot = stations.get(stationId);
+    if (!snapshot) return;
+    const history = historyOf(stationId);
+    const pushed = liveChecks.update(stationId, {
+      profile: snapshot.profile,
+      runId: snapshot.runId,
+      boardId: snapshot.board?.boardId ?? null,
+      sampleCount: history.sampleCount,
+      samples: () => history.samples(),
+      events: () => history.eventsFrom(),
+    });
+    if (pushed) emit({ push: 'checks', data: pushed });
+  };
+  const checksTimer = setInterval(() => {
+    for (const snapshot of stations.list()) judgeLive(snapshot.id);
+  }, 1000);
+  checksTimer.unref();
+
   const historyOf = (stationId: string): StationHistory => {
     let history = histories.get(stationId);
     if (!history) {
@@ -88,6 +110,7 @@ export function createAppService(options: AppServiceOptions): AppService {
     'station-removed': ({ stationId }: { stationId: string }) => {
       batcher.forget(stationId);
       histories.delete(stationId);
+      liveChecks.forget(stationId);
       acks.forget(stationId);
       emit({ push: 'station-removed', data: { stationId } });
     },
@@ -108,6 +131,11 @@ export function createAppService(options: AppServiceOptions): AppService {
       batcher.addLine(stationId, line);
     },
     source: ({ stationId }: { stationId: string }) => batcher.markChanged(stationId),
+    board: ({ stationId, newRun }: { stationId: string; newRun: boolean }) => {
+      // A new board is a new run with a new time axis: the old history belongs to the closed run.
+      if (newRun) histories.set(stationId, new StationHistory());
+      batcher.markChanged(stationId);
+    },
     problem: (problem: Parameters<StationManagerListener<'problem'>>[0]) =>
       emit({ push: 'problem', data: problem }),
   };
@@ -216,6 +244,24 @@ export function createAppService(options: AppServiceOptions): AppService {
         atT,
       });
     },
+    'stations.setBoard': async ({ stationId, boardId, operator, batchId }: P<'stations.setBoard'>) => {
+      needStation(stationId);
+      const board: Record<string, string | null> = {};
+      if (boardId !== undefined) board.boardId = boardId;
+      if (operator !== undefined) board.operator = operator === '' ? null : operator;
+      if (batchId !== undefined) board.batchId = batchId;
+      return view(await stations.setBoard(stationId, board));
+    },
+    'stations.startBatch': async ({ batchId }: P<'stations.startBatch'>) => {
+      const snapshots = await stations.startBatch(batchId);
+      for (const snapshot of snapshots) histories.set(snapshot.id, new StationHistory());
+      return snapshots.map(view);
+    },
+    'stations.checks': ({ stationId }: P<'stations.checks'>) => {
+      needStation(stationId);
+      judgeLive(stationId);
+      return liveChecks.latest(stationId);
+    },
     'ports.list': () => libs.listPorts(),
     'scenarios.list': () => libs.listScenarios(),
     'profile.validate': ({ profile }: P<'profile.validate'>) => libs.parseProfile(profile),
@@ -263,6 +309,18 @@ export function createAppService(options: AppServiceOptions): AppService {
         atT,
       });
     },
+    'runs.checks': ({ runId }: P<'runs.checks'>) => {
+      const row = needRun(runId);
+      const rec = needRecorder();
+      const profile = resolveProfile(rec.profileOf(runId), `the profile recorded with run ${runId}`);
+      if (!profile.expect) return null;
+      return runChecks({
+        profile,
+        samples: rec.allSamples(runId),
+        events: rec.events(runId),
+        board: row.boardId ?? null,
+      });
+    },
     'runs.exportCsv': ({ runId }: P<'runs.exportCsv'>) =>
       exportFile(runId, 'csv', options.writeCsvFile && ((path) => options.writeCsvFile!(runId, path))),
     'runs.report': ({ runId, pdf }: P<'runs.report'>) =>
@@ -297,6 +355,7 @@ export function createAppService(options: AppServiceOptions): AppService {
       return () => bus.off('push', listener);
     },
     close() {
+      clearInterval(checksTimer);
       batcher.flushAll();
       batcher.close();
       for (const [name, fn] of Object.entries(listeners)) stations.off(name as never, fn as never);

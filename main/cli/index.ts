@@ -8,6 +8,7 @@ import { registerRecord } from './record';
 import { registerServe } from './serve';
 import { registerReport } from './report';
 import { registerDiagnose } from './diagnose';
+import { registerCheck } from './check';
 
 export async function runCli(argv: string[]): Promise<number> {
   const program = new Command('taperline')
@@ -22,6 +23,7 @@ export async function runCli(argv: string[]): Promise<number> {
     registerServe,
     registerReport,
     registerDiagnose,
+    registerCheck,
   ]) {
     register(program);
   }

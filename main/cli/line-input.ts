@@ -2,18 +2,12 @@
  * Where replay and diagnose read lines from: a telemetry file, standard input, or a run of
  * a recording database (read back exactly as if from a file, with its receive times).
  */
-import type { ResolvedProfile } from '@shared/chemistry/types';
+import type { LineInput } from '../sources/line-input';
 import { UsageError } from './errors';
-import { readTelemetryLines, streamTelemetryLines, type TimedLine } from './read-lines';
+import { readTelemetryLines, streamTelemetryBytes, streamTelemetryLines } from './read-lines';
 import { openRecordedRun } from './recorded-run';
 
-export interface LineInput {
-  /** The profile the input was recorded with, when it carries one (database runs). */
-  profile: ResolvedProfile | null;
-  /** Fast path: every line, synchronously per chunk. */
-  forEach(onLine: (text: string, rxS: number, tooLong: boolean) => void): Promise<void>;
-  lines(): AsyncIterable<TimedLine>;
-}
+export type { LineInput };
 
 export interface LineInputOptions {
   db?: string;
@@ -31,6 +25,9 @@ export function openLineInput(file: string | undefined, options: LineInputOption
     profile: null,
     forEach: async (onLine) => {
       await streamTelemetryLines(file, onLine, { intervalS: options.intervalS });
+    },
+    forEachBytes: async (onLine) => {
+      await streamTelemetryBytes(file, onLine, { intervalS: options.intervalS });
     },
     lines: () => readTelemetryLines(file, { intervalS: options.intervalS }),
   };

@@ -1,46 +1,20 @@
-/** Loads a profile JSON file; every failure is one line naming the file and key. */
-import { readFileSync } from 'node:fs';
-import { parseProfile } from '@shared/chemistry/profile';
+/** Profile files for the commands: the app's reader, its refusals as usage errors (exit 2). */
 import type { ResolvedProfile } from '@shared/chemistry/types';
+import * as files from '../app/profile-file';
+import { InputFileError } from '../app/input-file-error';
 import { UsageError } from './errors';
 
-/** A profile file resolved to the limits the engine uses (replay, diagnose, report). */
-export function loadProfileFile(path: string): ResolvedProfile {
-  return resolveProfileJson(readProfileFileJson(path), `profile ${path}`);
-}
-
-/**
- * A profile file's JSON as written (stations store it with each run), after checking it is a
- * valid profile. The one reader of profile files for `record`, `serve` and the desktop app.
- */
-export function readValidatedProfileJson(path: string): unknown {
-  const json = readProfileFileJson(path);
-  resolveProfileJson(json, `profile ${path}`);
-  return json;
-}
-
-/** Validates profile JSON from any origin (a file, a recorded run's snapshot). */
-export function resolveProfileJson(json: unknown, origin: string): ResolvedProfile {
-  const result = parseProfile(json);
-  if (!result.ok) throw new UsageError(`${origin} refused: ${result.error}`);
-  return result.profile;
-}
-
-function readProfileFileJson(path: string): unknown {
-  let text: string;
+function asUsage<T>(read: () => T): T {
   try {
-    text = readFileSync(path, 'utf8');
+    return read();
   } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new UsageError(
-      code === 'ENOENT'
-        ? `no such profile file: ${path}`
-        : `cannot read profile ${path}: ${(err as Error).message}`,
-    );
-  }
-  try {
-    return JSON.parse(text) as unknown;
-  } catch (err) {
-    throw new UsageError(`profile ${path} is not valid JSON: ${(err as Error).message}`);
+    if (err instanceof InputFileError) throw new UsageError(err.message);
+    throw err;
   }
 }
+
+export const loadProfileFile = (path: string): ResolvedProfile => asUsage(() => files.loadProfileFile(path));
+export const readValidatedProfileJson = (path: string): unknown =>
+  asUsage(() => files.readValidatedProfileJson(path));
+export const resolveProfileJson = (json: unknown, origin: string): ResolvedProfile =>
+  asUsage(() => files.resolveProfileJson(json, origin));

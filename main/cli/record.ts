@@ -11,12 +11,22 @@ import type { Recorder } from '../recorder/types';
 import { StationConfigError } from '../station/errors';
 import { createStationManager, MAX_STATIONS } from '../station/manager';
 import type { StationManager, StationSnapshot } from '../station/types';
+import { hostname } from 'node:os';
+import { parseBrokerUrl, topicLevel } from '@shared/sources/mqtt-topics';
+import type { StationConfig } from '@shared/sources/schemas';
+import { InputFileError } from '../app/input-file-error';
+import { stationsFromOptions } from '../app/station-options';
+import { startPublisher, type Publisher } from '../mqtt/publisher';
 import { UsageError } from './errors';
-import { nonNegativeNumber, positiveInteger } from './options';
+import { nonNegativeNumber, positiveInteger, positiveNumber } from './options';
 import { readValidatedProfileJson } from './profile-file';
 
 interface RecordOptions {
   port: string[];
+  simulate: string[];
+  speedup?: string;
+  publish?: string;
+  bench?: string;
   baud: string;
   profile?: string;
   db?: string;
@@ -117,12 +127,21 @@ export function registerRecord(program: Command): void {
     .description(
       'Record serial ports as stations into the recording database, with a live status line per station.',
     )
-    .requiredOption(
+    .option(
       '--port <path>',
-      'serial port of a charger (repeat for several stations)',
+      'serial port or tcp://HOST:PORT of a charger (repeat for several stations)',
       (v: string, all: string[]) => [...all, v],
       [] as string[],
     )
+    .option(
+      '--simulate <scenario>',
+      'also record a simulated charger running this scenario (repeat for several)',
+      (v: string, all: string[]) => [...all, v],
+      [] as string[],
+    )
+    .option('--speedup <n>', 'simulated seconds per real second, with --simulate')
+    .option('--publish <url>', 'also publish every station to mqtt://HOST[:PORT]/PREFIX')
+    .option('--bench <name>', 'name of this bench under the --publish prefix (default: the host name)')
     .option('--baud <n>', 'baud rate of every port', '115200')
     .option(
       '--profile <file>',
@@ -146,13 +165,32 @@ async function record(options: RecordOptions): Promise<void> {
   const resumeWithinS = nonNegativeNumber('--resume-within', options.resumeWithin, 'seconds');
   const statusEveryS = nonNegativeNumber('--status-every', options.statusEvery, 'seconds');
   const ports = [...new Set(options.port)];
-  if (ports.length === 0) throw new UsageError('give at least one --port PATH (see `taperline ports`)');
+  const simulate = options.simulate ?? [];
+  if (ports.length === 0 && simulate.length === 0)
+    throw new UsageError('give at least one --port PATH (see `taperline ports`) or --simulate SCENARIO');
   // Checked before anything starts, so no run is opened only to be closed again.
-  if (ports.length > MAX_STATIONS)
+  if (ports.length + simulate.length > MAX_STATIONS)
     throw new UsageError(
-      `at most ${MAX_STATIONS} stations can record at once (got ${ports.length} --port paths); nothing was recorded: run a second \`taperline record\` with another --db FILE for the rest`,
+      `at most ${MAX_STATIONS} stations can record at once (got ${ports.length} --port paths${simulate.length > 0 ? ` and ${simulate.length} --simulate` : ''}); nothing was recorded: run a second \`taperline record\` with another --db FILE for the rest`,
     );
+  if (options.publish && !parseBrokerUrl(options.publish))
+    throw new UsageError(`--publish must be mqtt://HOST[:PORT]/PREFIX (got "${options.publish}")`);
+  if (options.bench !== undefined && !/^[A-Za-z0-9._-]{1,64}$/.test(options.bench))
+    throw new UsageError(`--bench must be 1–64 letters, digits, . _ - (got "${options.bench}")`);
   const profile = options.profile ? readValidatedProfileJson(options.profile) : null;
+  let configs: StationConfig[];
+  try {
+    configs = stationsFromOptions({
+      ports,
+      baudRate,
+      simulate,
+      speedup: options.speedup === undefined ? undefined : positiveNumber('--speedup', options.speedup),
+      portId: (port) => (port.startsWith('tcp:') ? port : `serial:${port}`),
+    }).map((c) => (c.source.kind === 'simulator' ? c : { ...c, profile }));
+  } catch (err) {
+    if (err instanceof InputFileError) throw new UsageError(err.message);
+    throw err;
+  }
   const dbPath = options.db ?? defaultDbPath();
   const display = new LiveDisplay(process.stdout, statusEveryS * 1000);
 
@@ -182,21 +220,31 @@ async function record(options: RecordOptions): Promise<void> {
       'No --profile given: each station assumes a Li-ion pack from its first pack voltage.\n',
     );
   process.stdout.write(
-    `Recording ${ports.length} station(s) into ${recorder ? dbPath : '(nothing: no database)'}; Ctrl-C stops and closes the runs.\n`,
+    `Recording ${configs.length} station(s) into ${recorder ? dbPath : '(nothing: no database)'}; Ctrl-C stops and closes the runs.\n`,
   );
   process.stdout.write(
     'Caution: charging lithium and lead-acid cells can start fires; set limits from the cell maker’s datasheet and local codes.\n',
   );
-  for (const path of ports) {
+  let publisher: Publisher | null = null;
+  if (options.publish) {
+    const bench = options.bench ?? topicLevel(hostname());
+    publisher = await startPublisher(options.publish, {
+      bench,
+      stations: manager,
+      profileOf: (id) => manager.configOf(id)?.profile ?? null,
+      onNote: (message) => display.message(`note: ${message}`, snapshots()),
+    });
+    // Before the stations start, so their first samples are published too.
+    process.stdout.write(`Publishing as bench "${bench}" to ${options.publish}\n`);
+  }
+
+  for (const config of configs) {
+    const path = config.label ?? config.id;
     try {
-      await manager.addStation({
-        id: `serial:${path}`,
-        label: path,
-        source: { kind: 'serial', path, baudRate },
-        profile,
-      });
+      await manager.addStation(config);
     } catch (err) {
       // Stations already started must not keep their runs open: close them all, then say why.
+      await publisher?.stop();
       await manager.close();
       recorder?.close();
       if (!(err instanceof StationConfigError)) throw err;
@@ -216,6 +264,13 @@ async function record(options: RecordOptions): Promise<void> {
   clearInterval(refresh);
   const last = snapshots();
   await manager.close();
+  if (publisher) {
+    await publisher.stop();
+    const p = publisher.stats();
+    process.stdout.write(
+      `Published ${p.acknowledged} of ${p.published} messages to the broker${p.dropped > 0 ? ` (${p.dropped} dropped: the broker was away too long)` : ''}.\n`,
+    );
+  }
   recorder?.close();
   display.update(last, true);
   for (const s of last) {

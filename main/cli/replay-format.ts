@@ -16,6 +16,8 @@ export function summaryRecord(summary: RunSummary) {
     phaseS,
     lines: summary.lines,
     rejected: summary.rejected,
+    timeGlitches: summary.timeGlitches ?? 0,
+    clockResets: summary.clockResets ?? 0,
   };
 }
 
@@ -41,6 +43,9 @@ export function formatSummaryText(summary: RunSummary): string {
     .join(', ');
   return (
     `summary: ${formatClock(summary.durationS)} run, ${summary.ah.toFixed(3)} Ah, ${summary.wh.toFixed(2)} Wh; ` +
-    `${phases || 'no phases'}; ${summary.lines} lines, ${summary.rejected} rejected\n`
+    `${phases || 'no phases'}; ${summary.lines} lines, ${summary.rejected} rejected` +
+    (summary.timeGlitches ? `, ${summary.timeGlitches} time glitch(es)` : '') +
+    (summary.clockResets ? `, ${summary.clockResets} device reboot(s)` : '') +
+    '\n'
   );
 }

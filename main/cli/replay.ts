@@ -3,12 +3,10 @@
  * live port and prints the phases, alarms and a summary (NDJSON with --events).
  */
 import type { Command } from 'commander';
-import type { EngineEvent, RunSummary } from '@shared/engine/types';
 import { positiveNumber, speedOrMax } from './options';
 import { loadProfileFile } from './profile-file';
 import { openLineInput } from './line-input';
-import { ProfiledRun } from './profiled-run';
-import { formatEventText, formatSummaryText, summaryRecord } from './replay-format';
+import { EventSink, replayInto } from './replay-run';
 
 interface ReplayOptions {
   profile?: string;
@@ -42,51 +40,9 @@ async function replay(file: string | undefined, options: ReplayOptions): Promise
   const intervalS = positiveNumber('--interval', options.interval, 'seconds');
   const explicitProfile = options.profile ? loadProfileFile(options.profile) : null;
   const input = openLineInput(file, { db: options.db, run: options.run, intervalS });
-  const profile = explicitProfile ?? input.profile;
-  const sink = new EventSink(options.events === true);
-  let lastSampleT: number | null = null;
-  const run = new ProfiledRun(
-    profile,
-    (outcome) => {
-      for (const event of outcome.events) sink.event(event);
-      if (outcome.sample) lastSampleT = outcome.sample.t;
-    },
-    (note) => process.stderr.write(`taperline: ${note}\n`),
-  );
-
-  if (speed === 'max') {
-    await input.forEach((text, rxS, tooLong) => run.push(text, rxS, tooLong));
-  } else {
-    // Paced on the run clock: wait until the last sample's time, divided by speed, has passed.
-    const startedMs = performance.now();
-    for await (const line of input.lines()) {
-      run.push(line.text, line.rxS, line.tooLong);
-      if (lastSampleT === null) continue;
-      const aheadMs = (lastSampleT / speed) * 1000 - (performance.now() - startedMs);
-      if (aheadMs > 1) await new Promise((resolve) => setTimeout(resolve, aheadMs));
-    }
-  }
-  sink.finish(run.finish().summary());
-}
-
-/** Prints events as NDJSON (--events) or as readable lines. */
-class EventSink {
-  private buffer = '';
-
-  constructor(private readonly ndjson: boolean) {}
-
-  event(event: EngineEvent): void {
-    this.buffer += (this.ndjson ? JSON.stringify(event) : formatEventText(event)) + '\n';
-    if (this.buffer.length > 1 << 16) this.flush();
-  }
-
-  finish(summary: RunSummary): void {
-    this.buffer += this.ndjson ? JSON.stringify(summaryRecord(summary)) + '\n' : formatSummaryText(summary);
-    this.flush();
-  }
-
-  private flush(): void {
-    process.stdout.write(this.buffer);
-    this.buffer = '';
-  }
+  const sink = new EventSink(options.events === true, (text) => process.stdout.write(text));
+  await replayInto(input, explicitProfile ?? input.profile, sink, {
+    speed,
+    onNote: (note) => process.stderr.write(`taperline: ${note}\n`),
+  });
 }

@@ -82,7 +82,11 @@ async function runReport(target: string | undefined, options: ReportOptions): Pr
     }
     const run = await collectRun(input, profile);
     if (run.assumedProfileNote) process.stderr.write(`taperline: ${run.assumedProfileNote}\n`);
-    report = reportInputOf(run, `Run report: ${run.profile.name}`, source);
+    report = reportInputOf(run, `Run report: ${run.profile.name}`, source, {
+      board: run.identity.board ?? null,
+      operator: run.identity.operator ?? null,
+      firmware: run.identity.firmware ?? null,
+    });
   }
   const html = buildRunReport(report);
   try {

@@ -9,6 +9,9 @@ import { BackendStartError, startBackend, type BackendOptions } from '../app/bac
 import { reportChildFatal, runChildBackend } from '../app/child-backend';
 import { parseWebhookUrl, startAlarmWebhook } from '../app/alarm-webhook';
 import { realLibraries } from '../app/libraries';
+import { parseBrokerUrl } from '@shared/sources/mqtt-topics';
+import { InputFileError } from '../app/input-file-error';
+import { stationsFromOptions } from '../app/station-options';
 import { RecorderOpenError } from '../recorder/errors';
 import { startServer } from '../server';
 import { UsageError } from './errors';
@@ -20,13 +23,16 @@ export const DEFAULT_SERVE_PORT = 4870;
 interface ServeOptions {
   host: string;
   port: string;
-  simulate?: string;
+  simulate: string[];
   speedup?: string;
   db?: string;
   record: boolean;
-  stationPort?: string;
+  stationPort: string[];
   baud: string;
   profile?: string;
+  rack?: string;
+  fresh?: boolean;
+  subscribe?: string;
   open?: boolean;
   webhook?: string;
   electronChild?: boolean;
@@ -42,13 +48,29 @@ export function registerServe(program: Command): void {
       '127.0.0.1',
     )
     .option('--port <n>', 'TCP port (0 = any free port)', String(DEFAULT_SERVE_PORT))
-    .option('--simulate <scenario>', 'start a simulated station running this scenario')
+    .option(
+      '--simulate <scenario>',
+      'start a simulated station running this scenario (repeat for several)',
+      collect,
+      [] as string[],
+    )
     .option('--speedup <n>', 'simulated seconds per real second, with --simulate')
     .option('--db <file>', 'recording database (default: taperline.sqlite in your data folder)')
     .option('--no-record', 'do not record runs to a database')
-    .option('--station-port <path>', 'start a station on this serial port')
-    .option('--baud <n>', 'baud rate of --station-port', '115200')
-    .option('--profile <file>', 'profile JSON of the --station-port station')
+    .option(
+      '--station-port <path>',
+      'start a station on this serial port or tcp://HOST:PORT (repeat for several)',
+      collect,
+      [] as string[],
+    )
+    .option('--baud <n>', 'baud rate of the --station-port serial ports', '115200')
+    .option('--profile <file>', 'profile JSON of the --station-port stations')
+    .option(
+      '--rack <file>',
+      'start the stations of this rack file (JSON: stations with port, profile, label)',
+    )
+    .option('--fresh', 'do not bring back the stations saved with the database (the saved rack)')
+    .option('--subscribe <url>', 'show every station published to mqtt://HOST[:PORT]/PREFIX')
     .option('--open', 'open the address in the default browser')
     .option(
       '--webhook <url>',
@@ -65,35 +87,46 @@ export function registerServe(program: Command): void {
     });
 }
 
+function collect(value: string, all: string[]): string[] {
+  return [...all, value];
+}
+
 export function backendOptionsFrom(options: ServeOptions): BackendOptions {
-  const backend: BackendOptions = { dbPath: options.record ? (options.db ?? undefined) : null };
-  if (options.speedup !== undefined && !options.simulate)
+  const simulate = options.simulate ?? [];
+  const ports = options.stationPort ?? [];
+  if (options.speedup !== undefined && simulate.length === 0)
     throw new UsageError('--speedup goes with --simulate SCENARIO');
-  if (options.simulate) {
-    const known = realLibraries.listScenarios().map((s) => (s as { name: string }).name);
-    if (!known.includes(options.simulate)) {
-      throw new UsageError(`no scenario "${options.simulate}"; known scenarios: ${known.join(', ')}`);
-    }
-    backend.simulate = {
-      scenario: options.simulate,
-      speedup: options.speedup === undefined ? undefined : positiveNumber('--speedup', options.speedup),
-    };
-  }
-  if (options.stationPort) {
-    if (!options.profile) {
-      throw new UsageError(
-        '--station-port needs --profile P.json: the profile says what is charged and how it reports',
-      );
-    }
-    backend.serial = {
-      path: options.stationPort,
+  const known = realLibraries.listScenarios().map((s) => (s as { name: string }).name);
+  for (const name of simulate)
+    if (!known.includes(name))
+      throw new UsageError(`no scenario "${name}"; known scenarios: ${known.join(', ')}`);
+  if (ports.length > 0 && !options.profile)
+    throw new UsageError(
+      '--station-port needs --profile P.json: the profile says what is charged and how it reports',
+    );
+  if (ports.length === 0 && options.profile)
+    throw new UsageError('--profile goes with --station-port (a simulated station brings its own profile)');
+  if (options.subscribe && !parseBrokerUrl(options.subscribe))
+    throw new UsageError(`--subscribe must be mqtt://HOST[:PORT]/PREFIX (got "${options.subscribe}")`);
+  try {
+    const stations = stationsFromOptions({
+      ports,
       baudRate: positiveInteger('--baud', options.baud, '115200'),
       profilePath: options.profile,
+      simulate,
+      speedup: options.speedup === undefined ? undefined : positiveNumber('--speedup', options.speedup),
+      rackPath: options.rack,
+    });
+    return {
+      dbPath: options.record ? (options.db ?? undefined) : null,
+      stations,
+      savedRack: options.fresh !== true,
+      subscribe: options.subscribe,
     };
-  } else if (options.profile) {
-    throw new UsageError('--profile goes with --station-port (a simulated station brings its own profile)');
+  } catch (err) {
+    if (err instanceof InputFileError) throw new UsageError(err.message);
+    throw err;
   }
-  return backend;
 }
 
 async function serve(options: ServeOptions): Promise<void> {

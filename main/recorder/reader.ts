@@ -23,6 +23,11 @@ interface RunDbRow {
   wh: number;
   lines: number;
   rejected: number;
+  board_id?: string | null;
+  operator?: string | null;
+  firmware?: string | null;
+  batch_id?: string | null;
+  verdict_json?: string | null;
 }
 
 interface SampleDbRow {
@@ -74,7 +79,23 @@ function toRunRow(r: RunDbRow): RunRow {
     wh: r.wh,
     lines: r.lines,
     rejected: r.rejected,
+    boardId: r.board_id ?? null,
+    operator: r.operator ?? null,
+    firmware: r.firmware ?? null,
+    batchId: r.batch_id ?? null,
+    verdict: verdictOf(r.verdict_json),
   };
+}
+
+/** The verdict word of a stored verdict JSON; null when none was stored or it is unreadable. */
+function verdictOf(json: string | null | undefined): RunRow['verdict'] {
+  if (!json) return null;
+  try {
+    const v = (JSON.parse(json) as { verdict?: unknown }).verdict;
+    return v === 'pass' || v === 'fail' || v === 'incomplete' ? v : null;
+  } catch {
+    return null;
+  }
 }
 
 export function toTimedSample(r: SampleDbRow): TimedSample {

@@ -12,7 +12,16 @@ import { defaultDbPath } from './paths';
 import { createRunReader } from './reader';
 import { RunRollup, slotFromRow, slotParams, type RollupSlot } from './rollup';
 import { SERIES_COLUMNS } from './schema';
-import type { Recorder, RecorderHealth, RunEndReason, RunStart, RunTotals, StoredLine } from './types';
+import type Database from 'better-sqlite3';
+import type {
+  Recorder,
+  RecorderHealth,
+  RunEndReason,
+  RunInfo,
+  RunStart,
+  RunTotals,
+  StoredLine,
+} from './types';
 
 export interface RecorderOptions {
   /** Longest time between commits. */
@@ -29,13 +38,23 @@ export interface RecorderOptions {
   busyTimeoutMs?: number;
 }
 
+/** Run-info keys and their columns (schema migration 3). */
+const INFO_COLUMNS: ReadonlyArray<[keyof RunInfo, string]> = [
+  ['boardId', 'board_id'],
+  ['operator', 'operator'],
+  ['firmware', 'firmware'],
+  ['batchId', 'batch_id'],
+  ['verdictJson', 'verdict_json'],
+];
+
 type Op =
   | { kind: 'run'; params: unknown[] }
   | { kind: 'line'; runId: number; line: StoredLine }
   | { kind: 'sample'; runId: number; seq: number; s: TimedSample }
   | { kind: 'event'; runId: number; event: EngineEvent | { type: 'sent'; t: number; text: string } }
   | { kind: 'slot'; runId: number; slot: RollupSlot }
-  | { kind: 'end'; runId: number; endRxS: number; reason: RunEndReason };
+  | { kind: 'end'; runId: number; endRxS: number; reason: RunEndReason }
+  | { kind: 'info'; runId: number; info: RunInfo };
 
 interface LiveRun {
   seq: number;
@@ -84,6 +103,9 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     end: db.prepare(
       'UPDATE runs SET end_rx_s = ?, end_reason = ?, writer_pid = NULL, writer_host = NULL WHERE id = ?',
     ),
+    info: Object.fromEntries(
+      INFO_COLUMNS.map(([key, column]) => [key, db.prepare(`UPDATE runs SET ${column} = ? WHERE id = ?`)]),
+    ) as Record<keyof RunInfo, Database.Statement>,
     maxRunId: db.prepare<[], { id: number | null }>('SELECT max(id) AS id FROM runs'),
     resumable: db.prepare<
       [string],
@@ -137,7 +159,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       let toDrop = queue.length - Math.floor(maxBacklogRows * 0.9);
       const keep: Op[] = [];
       for (const o of queue) {
-        if (toDrop > 0 && o.kind !== 'run' && o.kind !== 'end') {
+        if (toDrop > 0 && o.kind !== 'run' && o.kind !== 'end' && o.kind !== 'info') {
           toDrop--;
           dropped++;
         } else keep.push(o);
@@ -197,6 +219,12 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
         return;
       case 'end':
         st.end.run(op.endRxS, op.reason, op.runId);
+        return;
+      case 'info':
+        for (const [key] of INFO_COLUMNS) {
+          const value = op.info[key];
+          if (value !== undefined) st.info[key].run(value, op.runId);
+        }
         return;
     }
   }
@@ -381,6 +409,26 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     },
     addEvent(runId: number, event: EngineEvent) {
       enqueue({ kind: 'event', runId, event });
+    },
+    setRunInfo(runId: number, info: RunInfo) {
+      // Written at once when the run's row is in the file (a Runs list asked right after shows
+      // it); queued with the rest when it is not there yet or the file cannot be written now.
+      // An older queued info of the same run must not land after this one.
+      if (problem === null && !queue.some((o) => o.kind === 'info' && o.runId === runId)) {
+        try {
+          let written = true;
+          db.transaction(() => {
+            for (const [key] of INFO_COLUMNS) {
+              const value = info[key];
+              if (value !== undefined && st.info[key].run(value, runId).changes === 0) written = false;
+            }
+          })();
+          if (written) return;
+        } catch {
+          // Queued below and retried with the next flush.
+        }
+      }
+      enqueue({ kind: 'info', runId, info });
     },
     updateTotals(runId: number, totals: RunTotals) {
       pendingTotals.set(runId, totals);

@@ -111,6 +111,18 @@ export const MIGRATIONS: ReadonlyArray<(db: Database.Database) => void> = [
     ) WITHOUT ROWID;`);
     for (const level of ROLLUP_LEVELS_S) db.exec(rollupBackfillSql(level));
   },
+  // 3: board identity and verdict: which board a run tested (board id, operator, firmware
+  // version), which burn-in batch it belongs to, and its checks' verdict JSON.
+  (db) => {
+    db.exec(`
+    ALTER TABLE runs ADD COLUMN board_id TEXT;
+    ALTER TABLE runs ADD COLUMN operator TEXT;
+    ALTER TABLE runs ADD COLUMN firmware TEXT;
+    ALTER TABLE runs ADD COLUMN batch_id TEXT;
+    ALTER TABLE runs ADD COLUMN verdict_json TEXT;
+    CREATE INDEX runs_batch ON runs(batch_id, id);
+    CREATE INDEX runs_board ON runs(board_id, id);`);
+  },
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

@@ -49,6 +49,15 @@ export interface RunStart {
   startRxS: number;
 }
 
+/** What is known of the board a run tested, and the run's verdict (JSON of its checks). */
+export interface RunInfo {
+  boardId?: string | null;
+  operator?: string | null;
+  firmware?: string | null;
+  batchId?: string | null;
+  verdictJson?: string | null;
+}
+
 /** Running totals of a run, as the pipeline's summary gives them. */
 export interface RunTotals {
   durationS: number;
@@ -99,6 +108,8 @@ export interface Recorder extends RunReader {
   /** A gap event with `endT` set completes the open gap of the same `t` (one row per gap). */
   addEvent(runId: number, event: EngineEvent): void;
   updateTotals(runId: number, totals: RunTotals): void;
+  /** Board identity, batch and verdict of a run; only the keys given are written. */
+  setRunInfo(runId: number, info: RunInfo): void;
   endRun(runId: number, endRxS: number, reason: RunEndReason, totals?: RunTotals): void;
   /** Write everything queued now (also done every 250 ms and when the batch is large). */
   flush(): void;

@@ -23,6 +23,8 @@ import {
   type ChartBlock,
 } from './sections';
 import { REPORT_CSS } from './styles';
+import type { CheckReport } from '@shared/engine/checks';
+import { CHECKS_CSS, checksSection, type RunIdentity } from './checks-section';
 
 export interface RunReportInput {
   profile: ResolvedProfile;
@@ -36,6 +38,10 @@ export interface RunReportInput {
   title?: string;
   /** Where the run came from, e.g. a file name or `run 3 of bench.sqlite`. */
   source?: string;
+  /** The run judged against the board's design (profile `expect`); null when it has none. */
+  checks?: CheckReport | null;
+  /** The board under test: id, operator, firmware version (from the station or a `#` line). */
+  boardUnderTest?: RunIdentity;
   /** Generation time for the footer; now when omitted. */
   generatedAt?: Date;
 }
@@ -153,10 +159,11 @@ export function buildRunReportHtml(input: RunReportInput): string {
 <meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:">
 <meta name="generator" content="Taperline ${escapeHtml(taperlineVersion())}">
 <title>${escapeHtml(title)}</title>
-<style>${REPORT_CSS}</style>
+<style>${REPORT_CSS}${CHECKS_CSS}</style>
 </head>
 <body>
 ${titleSection(title, input.source, profile)}
+${checksSection(input.checks ?? null, input.boardUnderTest ?? { board: null, operator: null, firmware: null })}
 ${profileSection(profile)}
 ${timelineSection(segments, startT, data.endT)}
 ${metricsSection(metrics)}

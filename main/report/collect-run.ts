@@ -6,8 +6,9 @@
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
 import type { RejectReason } from '@shared/telemetry/types';
-import type { LineInput } from '../cli/line-input';
-import { ProfiledRun } from '../cli/profiled-run';
+import { parseBoardLine, type BoardLine } from '@shared/engine/checks/board-line';
+import type { LineInput } from '../sources/line-input';
+import { ProfiledRun } from '@shared/engine/assumed-profile';
 
 /** What a Run report is made of: the run's data and the engine's figures at its end. */
 export interface EngineRun {
@@ -23,18 +24,22 @@ export interface CollectedRun extends EngineRun {
   rejectCounts: Partial<Record<RejectReason, number>>;
   /** Set when no profile was given or recorded and one was assumed from the first pack voltage. */
   assumedProfileNote: string | null;
+  /** Board id, firmware version… from the firmware's `#` lines (`# board=GS-0042 fw=1.4.2`). */
+  identity: BoardLine;
 }
 
 /** Feeds lines into the pipeline, collecting samples and events; `push` is the whole hot path. */
 export class RunCollector {
   readonly samples: TimedSample[] = [];
   readonly events: EngineEvent[] = [];
+  readonly identity: BoardLine = {};
   private readonly run: ProfiledRun;
 
   constructor(profile: ResolvedProfile | null) {
     this.run = new ProfiledRun(profile, (out) => {
       if (out.sample) this.samples.push(out.sample);
       for (const e of out.events) this.events.push(e);
+      if (out.result.kind === 'firmware') Object.assign(this.identity, parseBoardLine(out.result.text));
     });
   }
 
@@ -52,6 +57,7 @@ export class RunCollector {
       metrics: pipeline.state().metrics,
       rejectCounts: pipeline.rejectCounts(),
       assumedProfileNote: this.run.note,
+      identity: this.identity,
     };
   }
 }

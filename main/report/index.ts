@@ -4,6 +4,8 @@
  */
 import { parseProfile } from '@shared/chemistry/profile';
 import { diagnose } from '@shared/engine/diagnosis';
+import { runChecks } from '@shared/engine/checks';
+import type { RunIdentity } from './checks-section';
 import type { RunReader } from '../recorder/types';
 import { buildRunReportHtml, type RunReportInput } from './build-report';
 import type { EngineRun } from './collect-run';
@@ -36,9 +38,16 @@ function isRunReader(x: RunReportInput | RunReader): x is RunReader {
  * The report input of a run with the engine's figures, and its diagnosis: the one place both
  * report paths (a file on the command line, a recorded run in the app) turn a run into a report.
  */
-export function reportInputOf(run: EngineRun, title: string, source: string): RunReportInput {
+export function reportInputOf(
+  run: EngineRun,
+  title: string,
+  source: string,
+  identity: RunIdentity = { board: null, operator: null, firmware: null },
+): RunReportInput {
   const { profile, samples, events } = run;
   return {
+    checks: profile.expect ? runChecks({ profile, samples, events, board: identity.board }) : null,
+    boardUnderTest: identity,
     profile,
     samples,
     events,
@@ -63,5 +72,6 @@ export function recordedRunReportInput(reader: RunReader, runId: number, source?
     readRecordedRun(reader, runId, parsed.profile),
     `Run ${runId}: ${row.stationLabel || row.stationId} · ${row.profileName}`,
     source ?? `recorded run ${runId} (station ${row.stationId})`,
+    { board: row.boardId ?? null, operator: row.operator ?? null, firmware: row.firmware ?? null },
   );
 }

@@ -157,7 +157,7 @@ export function alarmsSection(events: readonly EngineEvent[]): string {
 
 export function gapsSection(gaps: GapRow[]): string {
   if (gaps.length === 0)
-    return `<section id="gaps"><h2>Gaps</h2><p class="note">Telemetry arrived without interruption.</p></section>`;
+    return `<section id="gaps"><h2>Gaps</h2><p class="note">No telemetry gap longer than the silence limit was recorded (a contact that drops the charge current is an alarm, not a gap).</p></section>`;
   const rows = gaps.map((g) => [
     clock(g.t),
     g.endT === null ? '—' : clock(g.endT),

@@ -1,4 +1,3 @@
 /** Serial ports: discovery and the serial LineSource. */
 export { createSerialSource, type SerialSourceOptions } from './serial-source';
 export { listPorts, PortListError, describeListError, byIdLinks, BY_ID_DIR, type PortEntry } from './list';
-export { ByteRunGuard } from './line-guard';

@@ -1,27 +1,36 @@
 /**
  * A serial port as a LineSource: opens with the configured framing, splits lines with the
- * byte-run guard + readline parser, notices unplugs (close with `disconnected`, errors, a
- * data watchdog that checks the device still exists) and reconnects on its own with a
- * capped exponential backoff, finding the device again when it comes back under another
- * path (serial number / vendor+product id, or its /dev/serial/by-id name).
+ * project's one framer (`LineFramer`, 4096-byte cap), notices unplugs by what the port does
+ * (a close with `disconnected`, EIO/ENXIO, a zero-byte read = hang-up, or the device path
+ * now naming another device while no data comes), and reconnects on its own: at once when
+ * the device folder changes (fs.watch), else on a capped exponential backoff after a failed
+ * open, finding the device again when it comes back under another path (serial number /
+ * vendor+product id, or its /dev/serial/by-id name).
  */
 import { EventEmitter } from 'node:events';
-import { existsSync } from 'node:fs';
+import { existsSync, lstatSync, realpathSync, statSync } from 'node:fs';
 import { realpath } from 'node:fs/promises';
-import { ReadlineParser } from '@serialport/parser-readline';
-import { SerialPort } from 'serialport';
-import type { SerialPortStream } from '@serialport/stream';
+import { dirname } from 'node:path';
+import { SerialPortStream } from '@serialport/stream';
+import { LineFramer } from '@shared/telemetry/framer';
 import type { LineSource, LineSourceEvents, SourceStatus } from '../sources/types';
 import type { SerialSourceConfig } from '../station/types';
-import { ByteRunGuard } from './line-guard';
+import { SerialPort } from 'serialport';
+import { watchDeviceFolders, type DeviceWatch } from './device-watch';
+import { hangUpAwareBinding } from './hangup-binding';
 import { BY_ID_DIR, byIdLinks } from './list';
 
 export interface SerialSourceOptions {
-  /** First reconnect delay; doubles after each failed attempt up to `retryMaxMs`. */
+  /** First delay after a failed open; doubles after each failed attempt up to `retryMaxMs`. */
   retryMinMs?: number;
   retryMaxMs?: number;
   /** With no data for this long, check the device still exists (some systems never report an unplug). */
   watchdogS?: number;
+  /**
+   * With no data for this long while the configured path now names another device node
+   * (a pty link re-pointed at another /dev/pts/N, a udev name re-used), the open port is dead.
+   */
+  replacedQuietMs?: number;
   /** Receive clock, seconds since the epoch. */
   now?: () => number;
   /** Port factory; tests pass a @serialport/binding-mock port. */
@@ -38,6 +47,8 @@ export interface SerialSourceOptions {
   exists?: (path: string) => boolean;
   /** Where stable device names live (default /dev/serial/by-id). */
   byIdDir?: string;
+  /** Folders to watch for device changes (default: the path's folder, its link target's, /dev, by-id). */
+  watchDirs?: string[];
 }
 
 type Match = NonNullable<SerialSourceConfig['match']>;
@@ -53,7 +64,47 @@ function matches(p: { serialNumber?: string; vendorId?: string; productId?: stri
   return false;
 }
 
+/**
+ * Which device node a path names now, or null when it leads nowhere: the name itself and the
+ * node it leads to, each by inode and change time. A re-made link or a node made again is new
+ * even when the file system re-uses the inode number and the kernel the device number (ptys
+ * re-use both at once).
+ */
+function nodeIdentity(path: string): string | null {
+  try {
+    const name = lstatSync(path, { bigint: true, throwIfNoEntry: false });
+    const node = name && statSync(path, { bigint: true, throwIfNoEntry: false });
+    return name && node ? `${name.ino}@${name.ctimeNs}>${node.rdev}:${node.ino}@${node.ctimeNs}` : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * A link into /dev/pts made before the pty it leads to is stale: its pty died (a killed
+ * socat leaves its links behind) and the kernel gave the number to another pty, which may
+ * be the far end of some other pair. Opening it would read, and lock, the wrong device.
+ */
+function isStalePtyLink(path: string): boolean {
+  try {
+    const name = lstatSync(path, { bigint: true, throwIfNoEntry: false });
+    if (!name?.isSymbolicLink()) return false;
+    const real = realpathSync(path);
+    if (!real.startsWith('/dev/pts/')) return false;
+    return name.ctimeNs < statSync(real, { bigint: true }).ctimeNs;
+  } catch {
+    return false;
+  }
+}
+
+/** The path leads to a device that can be opened now. */
+function present(exists: (path: string) => boolean, path: string): boolean {
+  return exists(path) && !isStalePtyLink(path);
+}
+
 const ENDINGS = { '\n': '\n', '\r\n': '\r\n', '\r': '\r', '': '' } as const;
+
+let sharedBinding: ReturnType<typeof hangUpAwareBinding> | null = null;
 
 export function createSerialSource(
   config: SerialSourceConfig,
@@ -62,12 +113,14 @@ export function createSerialSource(
   const retryMinMs = options.retryMinMs ?? 250;
   const retryMaxMs = options.retryMaxMs ?? 5000;
   const watchdogMs = (options.watchdogS ?? 5) * 1000;
+  const replacedQuietMs = options.replacedQuietMs ?? 200;
   const now = options.now ?? (() => Date.now() / 1000);
   const exists = options.exists ?? existsSync;
   const openPort =
     options.openPort ??
     ((o) =>
-      new SerialPort({
+      new SerialPortStream({
+        binding: (sharedBinding ??= hangUpAwareBinding()),
         path: o.path,
         baudRate: o.baudRate,
         dataBits: o.dataBits,
@@ -81,12 +134,18 @@ export function createSerialSource(
   const emitter = new EventEmitter<LineSourceEvents>();
   let state: SourceStatus['state'] | 'idle' = 'idle';
   let port: SerialPortStream | null = null;
+  let opening = false;
   let openedPath: string | null = null;
+  /** The device node opened (see nodeIdentity); null where it cannot be known (mock ports). */
+  let openedNode: string | null = null;
+  /** The node that was lost or failed to open last: only the backoff retries it, not folder changes. */
+  let deadNode: string | null = null;
   let byIdName: string | null = null;
   let learnedMatch: Match | null = config.match ?? null;
   let attempts = 0;
   let retryTimer: NodeJS.Timeout | null = null;
   let watchdog: NodeJS.Timeout | null = null;
+  let folders: DeviceWatch | null = null;
   let lastDataMs = 0;
   let lastRxS: number | null = null;
   let lostSinceRxS: number | null = null;
@@ -98,17 +157,22 @@ export function createSerialSource(
     emitter.emit('status', status);
   }
 
+  /** The paths that name the device without asking the system's port list. */
+  function knownPath(): string | null {
+    if (present(exists, config.path)) return config.path;
+    if (byIdName && present(exists, byIdName)) return byIdName;
+    return null;
+  }
+
   /** Where the device is now: the configured path, its by-id name, or a port that matches. */
   async function locate(): Promise<string | null> {
-    if (exists(config.path)) return config.path;
-    if (byIdName && exists(byIdName)) return byIdName;
-    if (learnedMatch) {
-      try {
-        const found = (await list()).find((p) => matches(p, learnedMatch as Match));
-        if (found) return found.path;
-      } catch {
-        // Listing failed (no udevadm...): keep trying the known paths.
-      }
+    const known = knownPath();
+    if (known !== null || !learnedMatch) return known;
+    try {
+      const found = (await list()).find((p) => matches(p, learnedMatch as Match));
+      if (found) return found.path;
+    } catch {
+      // Listing failed (no udevadm...): keep trying the known paths.
     }
     return null;
   }
@@ -117,6 +181,7 @@ export function createSerialSource(
   async function learnIdentity(path: string): Promise<void> {
     try {
       const real = await realpath(path);
+      folders?.add(dirname(real));
       for (const [link, target] of await byIdLinks(byIdDir)) if (target === real) byIdName = link;
       if (!learnedMatch) {
         const info = (await list()).find((p) => p.path === path || p.path === real);
@@ -144,6 +209,7 @@ export function createSerialSource(
     watchdog = null;
     const p = port;
     port = null;
+    openedNode = null;
     if (p) {
       p.removeAllListeners();
       p.on('error', () => undefined);
@@ -153,19 +219,62 @@ export function createSerialSource(
 
   function lost(detail: string): void {
     if (stopped) return;
+    deadNode = openedNode;
     detach();
     if (state !== 'lost') {
       lostSinceRxS = lastRxS ?? now();
       setStatus({ state: 'lost', detail, sinceRxS: lostSinceRxS });
     }
-    scheduleRetry();
+    // Straight back to the device when its name already leads to a new node (a quick replug);
+    // the node just lost is dying, so it waits for a folder change or the backoff.
+    const path = knownPath();
+    if (path !== null && nodeIdentity(path) !== deadNode) void attempt();
+    else scheduleRetry();
+  }
+
+  /** Is the open port still the device the path names? Called on folder changes and by the watchdog. */
+  function checkOpenPort(): void {
+    const p = port;
+    if (!p || !openedPath) return;
+    const quietMs = Date.now() - lastDataMs;
+    if (openedNode !== null && quietMs >= replacedQuietMs) {
+      const nowNode = nodeIdentity(openedPath);
+      if (nowNode !== null && nowNode !== openedNode) {
+        lost(
+          `${openedPath} now names another device and the open one sends nothing (unplugged and replugged)`,
+        );
+        return;
+      }
+    }
+    if (quietMs > watchdogMs && !exists(openedPath))
+      lost(`${openedPath} vanished (no data for ${watchdogMs / 1000} s)`);
+  }
+
+  /** Something changed in a device folder. */
+  function onFolderChange(): void {
+    if (stopped) return;
+    if (port) {
+      checkOpenPort();
+      return;
+    }
+    if (opening) return;
+    const path = knownPath();
+    if (path === null || nodeIdentity(path) === deadNode) return;
+    if (retryTimer) clearTimeout(retryTimer);
+    retryTimer = null;
+    void attempt();
   }
 
   async function attempt(): Promise<void> {
-    if (stopped) return;
+    if (stopped || port || opening) return;
+    opening = true;
     const path = await locate();
-    if (stopped) return;
+    if (stopped) {
+      opening = false;
+      return;
+    }
     if (path === null) {
+      opening = false;
       if (!openProblemSaid && state === 'connecting') {
         openProblemSaid = true;
         emitter.emit('problem', `${config.path} does not exist (yet); waiting for the device to appear`);
@@ -173,6 +282,7 @@ export function createSerialSource(
       scheduleRetry();
       return;
     }
+    const node = nodeIdentity(path);
     const p = openPort({
       path,
       baudRate: config.baudRate,
@@ -186,12 +296,16 @@ export function createSerialSource(
       lost(`${path}: ${err.message}`);
     });
     p.open((err) => {
+      opening = false;
       if (port !== p || stopped) {
         if (!err) p.close(() => undefined);
         return;
       }
       if (err) {
         port = null;
+        // A node failing for the first time (often one still being set up) is retried soon.
+        if (node !== deadNode) attempts = 0;
+        deadNode = node;
         p.removeAllListeners();
         if (!openProblemSaid && state === 'connecting') {
           openProblemSaid = true;
@@ -204,45 +318,37 @@ export function createSerialSource(
         scheduleRetry();
         return;
       }
-      attached(p, path);
+      deadNode = null;
+      attached(p, path, node);
     });
   }
 
-  function attached(p: SerialPortStream, path: string): void {
+  function attached(p: SerialPortStream, path: string, node: string | null): void {
     attempts = 0;
+    if (retryTimer) clearTimeout(retryTimer);
+    retryTimer = null;
     openedPath = path;
+    openedNode = node;
     lastDataMs = Date.now();
-    const guard = new ByteRunGuard();
-    // No `encoding`: lines stay bytes, decoded one by one, so a cut line never leaves half a
-    // UTF-8 character in front of the next one. Object mode keeps empty lines.
-    const parser = new ReadlineParser({ delimiter: '\n', encoding: undefined, readableObjectMode: true });
-    const decoder = new TextDecoder('utf-8');
-    let lineIndex = 0;
-    p.on('data', () => {
-      lastDataMs = Date.now();
-    });
-    p.pipe(guard).pipe(parser);
-    parser.on('data', (bytes: Buffer) => {
-      const tooLong = guard.takeCut(lineIndex++);
-      let text = decoder.decode(bytes);
-      // A `\r` is dropped only before a newline; a cut line keeps its bytes as they came.
-      if (!tooLong && text.endsWith('\r')) text = text.slice(0, -1);
+    // A new framer per connection: a line cut by the unplug is not glued to the next one.
+    const framer = new LineFramer((text, tooLong) => {
       const rxS = now();
       lastRxS = rxS;
       emitter.emit('line', { text, rxS, tooLong });
     });
+    p.on('data', (chunk: Buffer) => {
+      lastDataMs = Date.now();
+      framer.push(chunk);
+    });
     p.on('close', (err: (Error & { disconnected?: boolean }) | null) => {
       if (port !== p) return;
-      lost(err?.disconnected ? `${path} was unplugged` : `${path} closed${err ? `: ${err.message}` : ''}`);
+      lost(
+        err?.disconnected
+          ? `${path} was unplugged (${err.message})`
+          : `${path} closed${err ? `: ${err.message}` : ''}`,
+      );
     });
-    watchdog = setInterval(
-      () => {
-        if (port !== p) return;
-        if (Date.now() - lastDataMs > watchdogMs && !exists(path))
-          lost(`${path} vanished (no data for ${watchdogMs / 1000} s)`);
-      },
-      Math.max(100, Math.min(1000, watchdogMs / 2)),
-    );
+    watchdog = setInterval(checkOpenPort, Math.max(100, Math.min(1000, watchdogMs / 2)));
     watchdog.unref();
     const wasLost = state === 'lost';
     const since = lostSinceRxS;
@@ -259,12 +365,18 @@ export function createSerialSource(
     label: config.path,
     start() {
       if (state !== 'idle') return;
+      folders = watchDeviceFolders(
+        options.watchDirs ?? [dirname(config.path), '/dev', byIdDir],
+        onFolderChange,
+      );
       setStatus({ state: 'connecting', detail: `opening ${config.path} at ${config.baudRate} baud` });
       void attempt();
     },
     async stop() {
       if (stopped) return;
       stopped = true;
+      folders?.close();
+      folders = null;
       if (retryTimer) clearTimeout(retryTimer);
       retryTimer = null;
       const p = port;

@@ -15,6 +15,7 @@ import type { SupplyParams } from './supply';
 import type { ThermalParams } from './thermal';
 import type { ProfileJson, Scenario } from './types';
 import type { CloudParams, DayParams } from './irradiance';
+import { BOARD_BUILDERS } from './board-scenarios';
 
 /** Every demo board reads a 10 kOhm B3435 NTC through a 10 kOhm pull-up on a 12-bit ADC. */
 const DEMO_THERMISTOR: ThermistorModel = {
@@ -434,7 +435,7 @@ function openThermistor(): Scenario {
     expected: {
       summary: 'cc, then the raw ntc pins at the rail and the charger asserts its fault output',
       phases: ['cc', 'fault'],
-      alarms: ['fault-pin'],
+      alarms: ['fault-pin', 'sensor-fault'],
       noCritical: false,
       fault: true,
     },
@@ -468,7 +469,7 @@ function looseConnection(): Scenario {
       summary:
         'voltage steps with no current step, then dropouts (current to zero, voltage to the regulation set point)',
       phases: ['cc'],
-      alarms: [],
+      alarms: ['contact'],
       noCritical: false,
       fault: false,
     },
@@ -560,6 +561,7 @@ const BUILDERS: Record<string, () => Scenario> = {
   'loose-connection': looseConnection,
   'overvoltage-drift': overvoltageDrift,
   'weak-panel-timer': weakPanelTimer,
+  ...BOARD_BUILDERS,
 };
 
 export const SCENARIO_NAMES: readonly string[] = Object.keys(BUILDERS);

@@ -130,6 +130,7 @@ export function createTelemetryRun(scenario: Scenario, options: TelemetryOptions
     const substeps = Math.max(1, Math.ceil(interval / MAX_STEP_S));
     const dtS = interval / substeps;
     yield { text: `# charger boot fw ${FIRMWARE_VERSION}`, simS: 0 };
+    if (scenario.board) yield { text: `# board=${scenario.board} fw=${FIRMWARE_VERSION}`, simS: 0 };
     const c = scenario.bench.charger;
     yield {
       text: `# config ${c.chemistry} ${c.cells}s set ${c.chargeCurrentA.toFixed(2)} A, ${(c.regulationVPerCell * c.cells).toFixed(2)} V`,

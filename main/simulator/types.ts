@@ -1,5 +1,5 @@
 /** Types of the simulator's public surface: scenarios, their profiles and expected outcomes. */
-import type { Chemistry } from '@shared/chemistry/types';
+import type { Chemistry, ExpectRanges } from '@shared/chemistry/types';
 import type { ThermistorModel } from '@shared/telemetry/types';
 import type { AlarmCode, Phase } from '@shared/engine/types';
 import type { BenchParams } from './bench';
@@ -20,6 +20,8 @@ export interface ProfileJson {
   preconditionA?: number;
   preconditionTimeoutMin?: number;
   thermistor?: ThermistorModel;
+  /** What the board was designed to do (board checks). */
+  expect?: ExpectRanges;
 }
 
 /** What the run should show when its lines go through Taperline's pipeline. */
@@ -45,5 +47,7 @@ export interface Scenario {
   bench: BenchParams;
   /** The firmware prints raw thermistor counts (`ntc`) instead of `temp` unless told otherwise. */
   reportsNtc: boolean;
+  /** The board under test's id, printed by the firmware at boot (`# board=… fw=…`). */
+  board?: string;
   expected: ExpectedOutcome;
 }

@@ -1,6 +1,7 @@
 /**
- * A line source: anything that delivers telemetry lines to a station (a serial port,
- * the built-in simulated charger, a replayed file). Every source feeds the same pipeline.
+ * A line source: anything that delivers telemetry lines to a station (a serial port, the
+ * built-in simulated charger, a TCP stream, a remote bench, a recorded run, a file). Every
+ * source feeds the same pipeline. The kinds and their factories: `main/sources/registry.ts`.
  */
 import type { EventEmitter } from 'node:events';
 import type { SourceStatus } from '@shared/ipc/payloads';
@@ -28,6 +29,12 @@ export interface LineSourceEvents {
 export interface LineSource extends EventEmitter<LineSourceEvents> {
   /** Human-readable identity: a port path, `simulator:bench-liion-3s`, a file name. */
   readonly label: string;
+  /**
+   * The lines carry a recording's clock (a recorded run, a file), not the wall clock: the
+   * station does not tick silence on wall time for it; a hole in its data is a silence of its
+   * own, found when the next line arrives (as `taperline replay` does). Absent = wall clock.
+   */
+  readonly recordedClock?: boolean;
   start(): void;
   stop(): Promise<void>;
   /** Send a line to the device, when the source can (serial ports, the simulator). */

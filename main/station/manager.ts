@@ -7,13 +7,21 @@ import { EventEmitter } from 'node:events';
 import { parseProfile } from '@shared/chemistry/profile';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { createPipeline, type Pipeline } from '@shared/engine/pipeline';
-import { createLineParser, type LineParser } from '@shared/telemetry/parse-line';
+import { ProfileAssumer, assumedProfileJson } from '@shared/engine/assumed-profile';
 import type { EngineEvent } from '@shared/engine/types';
 import type { Recorder, RunEndReason } from '../recorder/types';
+import type { RemoteStations } from '../sources';
 import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';
 import { toFeedLine } from './feed-line';
 import { defaultMakeSource } from './sources';
+import { runChecks } from '@shared/engine/checks';
+import {
+  applyBoard,
+  boardFromFirmware,
+  NO_BOARD,
+  type StationBoard,
+} from '@shared/engine/checks/station-board';
 import type {
   SourceConfig,
   StationConfig,
@@ -24,26 +32,17 @@ import type {
 
 export const MAX_STATIONS = 16;
 
-/**
- * A source whose lines carry a recording's clock (a replayed run), not the wall clock. The
- * silence tick is skipped for it: like `taperline replay`, a hole in its data is a silence of
- * its own, found when the next line arrives.
- */
-export interface RecordedClockSource {
-  readonly recordedClock: true;
-}
-
-function hasRecordedClock(source: LineSource): boolean {
-  return (source as Partial<RecordedClockSource>).recordedClock === true;
-}
-
 export interface StationManagerOptions {
   /** Where runs are recorded; null or absent = live only. */
   recorder?: Recorder | null;
   /** Receive clock, seconds since the epoch. */
   now?: () => number;
-  /** Builds a station's source (default: serial ports and the built-in simulator). */
+  /** Builds a station's source (default: the registry of source kinds, main/sources/). */
   makeSource?: (config: SourceConfig, stationId: string) => LineSource;
+  /** Remote stations of other benches (`serve --subscribe`), for the `remote` source kind. */
+  remote?: RemoteStations | null;
+  /** Most stations at once (default MAX_STATIONS). */
+  maxStations?: number;
   /** Silence checks and run totals, every this many ms (default 1000). */
   tickMs?: number;
   /** Continue a run a crash left open when the same station comes back within this (default 600 s). */
@@ -65,22 +64,12 @@ interface Station {
   gap: { startRxS: number; reason: string } | null;
   lines: number;
   rejected: number;
+  /** The board under test (board id, operator, firmware, batch). */
+  board: StationBoard;
+  /** Runs of this station are recorded (false for a replay of a recorded run). */
+  records: boolean;
   /** No profile given: lines wait here until the first pack voltage shows the cell count. */
-  assume: { probe: LineParser; pending: SourceLine[] } | null;
-}
-
-/** Lines held while a profile is assumed; past this the pack is taken as one cell. */
-const MAX_ASSUME_LINES = 100;
-
-/** Li-ion nominal 3.7 V per cell (common practice) gives the cell count of an unknown pack. */
-export function assumedProfileJson(vbatV: number | undefined): {
-  name: string;
-  chemistry: 'li-ion';
-  cells: number;
-} {
-  const cells =
-    vbatV === undefined || !Number.isFinite(vbatV) ? 1 : Math.min(64, Math.max(1, Math.round(vbatV / 3.7)));
-  return { name: `assumed ${cells}S li-ion`, chemistry: 'li-ion', cells };
+  assume: ProfileAssumer | null;
 }
 
 function resolve(stationId: string, profileJson: unknown): ResolvedProfile {
@@ -93,7 +82,11 @@ function resolve(stationId: string, profileJson: unknown): ResolvedProfile {
 export function createStationManager(options: StationManagerOptions = {}): StationManager {
   const recorder = options.recorder ?? null;
   const now = options.now ?? (() => Date.now() / 1000);
-  const makeSource = options.makeSource ?? ((config: SourceConfig) => defaultMakeSource(config, { now }));
+  const makeSource =
+    options.makeSource ??
+    ((config: SourceConfig) =>
+      defaultMakeSource(config, { now, reader: recorder, remote: options.remote ?? null }));
+  const maxStations = options.maxStations ?? MAX_STATIONS;
   const resumeWithinS = options.resumeWithinS ?? 600;
   const stopTimeoutMs = options.stopTimeoutMs ?? 3000;
   const stations = new Map<string, Station>();
@@ -117,7 +110,11 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     }
   }
 
+  /** The recorder of this station's runs: none when recording is off or the station does not record. */
+  const recorderOf = (st: Station): Recorder | null => (st.records ? recorder : null);
+
   function record(st: Station, events: EngineEvent[]): void {
+    const recorder = recorderOf(st);
     for (const event of events) {
       if (recorder && st.runId !== null) recorder.addEvent(st.runId, event);
       emitter.emit('event', { stationId: st.id, event });
@@ -125,7 +122,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
   }
 
   function snapshot(st: Station): StationSnapshot {
-    const health = recorder?.health();
+    const health = recorderOf(st)?.health();
     return {
       id: st.id,
       label: st.label,
@@ -138,12 +135,19 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       rejected: st.rejected,
       recording: health
         ? { ok: health.ok, problem: health.problem }
-        : { ok: false, problem: 'not recording: no database is open' },
+        : {
+            ok: false,
+            problem: st.records
+              ? 'not recording: no database is open'
+              : 'not recorded (a replay of a recorded run)',
+          },
+      board: { ...st.board },
     };
   }
 
   function startRun(st: Station): void {
     st.runId = null;
+    const recorder = recorderOf(st);
     if (!recorder) return;
     try {
       const started = recorder.startRun(
@@ -158,6 +162,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         { resumeWithinS },
       );
       st.runId = started.runId;
+      if (st.board !== NO_BOARD) recorder.setRunInfo(started.runId, { ...st.board });
       if (started.resumed) {
         // Rebuild the run's state from its own lines, then mark the time the recorder was away.
         for (const line of recorder.lineIterator(started.runId))
@@ -177,9 +182,27 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     }
   }
 
+  /** The run judged against the profile's expect ranges, stored with it for the Runs view. */
+  function storeVerdict(recorder: Recorder, st: Station): void {
+    if (!st.profile.expect || st.runId === null) return;
+    // Everything queued must be in the file before it is read back.
+    recorder.flush();
+    const samples = recorder.allSamples(st.runId);
+    if (samples.length === 0) return;
+    const report = runChecks({
+      profile: st.profile,
+      samples,
+      events: recorder.events(st.runId),
+      board: st.board.boardId,
+    });
+    recorder.setRunInfo(st.runId, { verdictJson: JSON.stringify(report) });
+  }
+
   function endRun(st: Station, reason: RunEndReason): void {
+    const recorder = recorderOf(st);
     if (!recorder || st.runId === null) return;
     try {
+      guarded(st, 'judging the run', () => storeVerdict(recorder, st));
       recorder.endRun(st.runId, now(), reason, st.pipeline.summary());
     } catch (err) {
       problem(
@@ -204,33 +227,37 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
   }
 
   /** Without a profile: hold lines until a sample shows the pack voltage, then start the run. */
-  function assumeFrom(st: Station, assume: NonNullable<Station['assume']>, line: SourceLine): void {
-    assume.pending.push(line);
-    const probe = assume.probe.parse(line.text, line.rxS, line.tooLong);
-    const vbatV = probe.kind === 'sample' ? probe.sample.vbatV : undefined;
-    if (vbatV === undefined && assume.pending.length < MAX_ASSUME_LINES) return;
+  function assumeFrom(st: Station, assume: ProfileAssumer, line: SourceLine): void {
+    const decision = assume.push(line);
+    if (!decision) return;
+    const { vbatV } = decision;
     st.assume = null;
-    st.profileJson = assumedProfileJson(vbatV);
-    st.profile = resolve(st.id, st.profileJson);
+    st.profileJson = decision.profileJson;
+    st.profile = decision.profile;
     st.pipeline = createPipeline(st.profile);
     problem(
       st.id,
       `${st.label}: no profile given; assuming a ${st.profile.cells}-cell Li-ion pack` +
-        (vbatV === undefined
+        (vbatV === null
           ? ' (no pack voltage seen yet)'
           : ` from the first pack voltage ${vbatV.toFixed(2)} V`) +
         '. Give a profile for the pack’s real limits; follow the cell maker’s datasheet.',
       'warn',
     );
     startRun(st);
-    for (const held of assume.pending) onLine(st, held);
+    for (const held of decision.held) onLine(st, held);
   }
 
   function onLine(st: Station, line: SourceLine): void {
     if (st.assume) return assumeFrom(st, st.assume, line);
     if (st.gap) closeGap(st, line.rxS);
+    if (line.text.startsWith('#')) {
+      const fromFirmware = boardFromFirmware(line.text);
+      if (fromFirmware) setBoard(st, fromFirmware);
+    }
     const out = st.pipeline.pushLine(line.text, line.rxS, line.tooLong);
     const feed = toFeedLine(line.text, line.rxS, out.result);
+    const recorder = recorderOf(st);
     if (out.result.kind !== 'blank') st.lines++;
     if (out.result.kind === 'rejected') st.rejected++;
     if (recorder && st.runId !== null) {
@@ -240,6 +267,25 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     emitter.emit('line', { stationId: st.id, line: feed });
     if (out.sample) emitter.emit('sample', { stationId: st.id, sample: out.sample });
     record(st, out.events);
+  }
+
+  /** A new board id on a station that already tested one starts a new run for the new board. */
+  function setBoard(st: Station, update: Partial<StationBoard>): void {
+    const change = applyBoard(st.board, update, st.pipeline.state().last !== null);
+    if (!change) return;
+    st.board = change.board;
+    if (change.newRun) {
+      endRun(st, 'board-changed');
+      st.pipeline = createPipeline(st.profile);
+      st.lines = 0;
+      st.rejected = 0;
+      st.gap = null;
+      startRun(st);
+    } else {
+      const recorder = recorderOf(st);
+      if (recorder && st.runId !== null) recorder.setRunInfo(st.runId, { ...st.board });
+    }
+    emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: change.newRun });
   }
 
   function onStatus(st: Station, status: SourceStatus): void {
@@ -263,6 +309,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     st.source.on('problem', (message) => problem(st.id, `${st.label}: ${message}`, 'warn'));
     st.source.on('sent', (sent) =>
       guarded(st, 'recording a sent line', () => {
+        const recorder = recorderOf(st);
         if (recorder && st.runId !== null)
           recorder.addSent(st.runId, { text: sent.text, rxS: sent.rxS, t: st.pipeline.timeOf(sent.rxS) });
         emitter.emit('line', { stationId: st.id, line: { rxS: sent.rxS, text: sent.text, kind: 'sent' } });
@@ -295,7 +342,8 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     const rxS = now();
     for (const st of stations.values()) {
       guarded(st, 'the silence check', () => {
-        if (!hasRecordedClock(st.source)) record(st, st.pipeline.tick(rxS));
+        if (st.source.recordedClock !== true) record(st, st.pipeline.tick(rxS));
+        const recorder = recorderOf(st);
         if (recorder && st.runId !== null) recorder.updateTotals(st.runId, st.pipeline.summary());
       });
     }
@@ -317,10 +365,10 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     async addStation(config: StationConfig): Promise<StationSnapshot> {
       if (closed) throw new StationConfigError('the station manager is closed');
       if (stations.has(config.id)) throw new StationConfigError(`a station ${config.id} already exists`);
-      if (stations.size >= MAX_STATIONS)
-        throw new StationConfigError(`at most ${MAX_STATIONS} stations at once; remove one first`);
+      if (stations.size >= maxStations)
+        throw new StationConfigError(`at most ${maxStations} stations at once; remove one first`);
       const assumed = config.profile === null || config.profile === undefined;
-      const profileJson = assumed ? assumedProfileJson(undefined) : config.profile;
+      const profileJson = assumed ? assumedProfileJson(null) : config.profile;
       const profile = resolve(config.id, profileJson);
       let source: LineSource;
       try {
@@ -343,7 +391,9 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
         gap: null,
         lines: 0,
         rejected: 0,
-        assume: assumed ? { probe: createLineParser({}), pending: [] } : null,
+        board: NO_BOARD,
+        records: config.record !== false,
+        assume: assumed ? new ProfileAssumer() : null,
       };
       stations.set(st.id, st);
       if (!assumed) startRun(st);
@@ -362,6 +412,11 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       emitter.emit('station-removed', { stationId });
     },
     list: () => [...stations.values()].map(snapshot),
+    configOf(stationId: string): StationConfig | null {
+      const st = stations.get(stationId);
+      // The profile as it is now (changed in the app, or assumed from the first pack voltage).
+      return st ? { ...st.config, profile: st.assume ? st.config.profile : st.profileJson } : null;
+    },
     get(stationId: string) {
       const st = stations.get(stationId);
       return st ? snapshot(st) : null;
@@ -370,6 +425,32 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       const st = must(stationId);
       if (!st.source.send) throw new StationConfigError(`${st.label}: this source cannot send lines`);
       await st.source.send(text, ending);
+    },
+    async setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot> {
+      const st = must(stationId);
+      setBoard(st, board);
+      return snapshot(st);
+    },
+    async startBatch(batchId: string): Promise<StationSnapshot[]> {
+      // One burn-in, one start: every station's current run ends and a run of the batch begins.
+      // A replay of a recorded run is never part of a burn-in.
+      const live = [...stations.values()].filter((st) => st.records);
+      for (const st of live) {
+        st.board = { ...st.board, batchId };
+        if (st.assume) continue;
+        if (st.pipeline.state().last !== null) {
+          endRun(st, 'batch-started');
+          st.pipeline = createPipeline(st.profile);
+          st.lines = 0;
+          st.rejected = 0;
+          st.gap = null;
+          startRun(st);
+        } else if (recorder && st.runId !== null) {
+          recorder.setRunInfo(st.runId, { batchId });
+        }
+        emitter.emit('board', { stationId: st.id, board: { ...st.board }, newRun: true });
+      }
+      return live.map(snapshot);
     },
     async setProfile(stationId: string, profileJson: unknown): Promise<StationSnapshot> {
       const st = must(stationId);

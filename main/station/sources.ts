@@ -1,14 +1,8 @@
-/** The sources a station can have by default: a serial port or the built-in simulated charger. */
-import { createSerialSource } from '../serial/serial-source';
-import { createSimulatorSource } from '../simulator';
+/** A station's source, made by the one registry of source kinds (main/sources/registry.ts). */
+import { createSource, type SourceContext } from '../sources';
 import type { LineSource } from '../sources/types';
 import type { SourceConfig } from './types';
 
-export function defaultMakeSource(config: SourceConfig, options: { now: () => number }): LineSource {
-  if (config.kind === 'serial') return createSerialSource(config, { now: options.now });
-  return createSimulatorSource(config.scenario, {
-    shape: config.shape ?? 'kv',
-    sampleIntervalS: config.sampleIntervalS ?? 1,
-    speedup: config.speedup ?? 1,
-  });
+export function defaultMakeSource(config: SourceConfig, context: SourceContext): LineSource {
+  return createSource(config, context);
 }

@@ -5,43 +5,18 @@
 import type { EventEmitter } from 'node:events';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
 import type { FeedLine, SourceStatus, StationSnapshot } from '@shared/ipc/payloads';
+import type { StationBoard } from '@shared/engine/checks/station-board';
+import type { StationConfig } from '@shared/sources/schemas';
 
 export type { FeedLine, StationSnapshot };
 
-export type SerialSourceConfig = {
-  kind: 'serial';
-  path: string;
-  baudRate: number;
-  dataBits?: 5 | 6 | 7 | 8;
-  parity?: 'none' | 'even' | 'odd';
-  stopBits?: 1 | 2;
-  /** Find the device again after a replug, when it comes back under another path. */
-  match?: { serialNumber?: string; vendorId?: string; productId?: string };
-};
-
-export type SimulatorSourceConfig = {
-  kind: 'simulator';
-  scenario: string;
-  /** Simulated seconds per wall-clock second (time compression for demos). */
-  speedup?: number;
-  shape?: 'kv' | 'csv' | 'json';
-  sampleIntervalS?: number;
-};
-
-export type SourceConfig = SerialSourceConfig | SimulatorSourceConfig;
-
-export interface StationConfig {
-  /** Stable id, e.g. `bench-1`. */
-  id: string;
-  label?: string;
-  source: SourceConfig;
-  /**
-   * Profile JSON as the user wrote it (docs/profile.md); validated on add. Null or absent:
-   * a Li-ion pack is assumed from the first pack voltage (as `replay` does without --profile),
-   * and the run starts with that first sample.
-   */
-  profile: unknown;
-}
+// Derived from the zod schemas of shared/sources: one definition of every source kind.
+export type {
+  SerialSourceConfig,
+  SimulatorSourceConfig,
+  SourceConfig,
+  StationConfig,
+} from '@shared/sources/schemas';
 
 export interface StationManagerEvents {
   'station-added': [StationSnapshot];
@@ -52,6 +27,8 @@ export interface StationManagerEvents {
   source: [{ stationId: string; status: SourceStatus }];
   /** A problem a person should read (recording failed, port vanished...). */
   problem: [{ stationId: string | null; message: string; level: 'warn' | 'critical' }];
+  /** The board under test changed (typed, scanned or printed by the firmware). */
+  board: [{ stationId: string; board: StationBoard; newRun: boolean }];
 }
 
 export interface StationManager extends EventEmitter<StationManagerEvents> {
@@ -59,7 +36,13 @@ export interface StationManager extends EventEmitter<StationManagerEvents> {
   removeStation(stationId: string): Promise<void>;
   list(): StationSnapshot[];
   get(stationId: string): StationSnapshot | null;
+  /** A station's config with its profile as it is now (for a saved rack); null when unknown. */
+  configOf(stationId: string): StationConfig | null;
   send(stationId: string, text: string, ending: '\n' | '\r\n' | '\r' | ''): Promise<void>;
+  /** Set the board under test (typed or scanned); a new board id starts a new run. */
+  setBoard(stationId: string, board: Partial<StationBoard>): Promise<StationSnapshot>;
+  /** Start a burn-in batch: every station's run ends and a new run of batch `batchId` begins. */
+  startBatch(batchId: string): Promise<StationSnapshot[]>;
   /** Replace a station's profile: closes the current run and starts a new one. */
   setProfile(stationId: string, profile: unknown): Promise<StationSnapshot>;
   /** Stop every station, close their runs cleanly, flush the recorder. */

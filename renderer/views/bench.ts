@@ -20,11 +20,12 @@ import {
 } from '../format';
 import type { Navigator, View, ViewTarget } from '../router';
 import type { StationModel, Store } from '../store';
-import { errorText, readEvents, readRun, type RunListRow } from '../wire';
+import { errorText, readChecks, readEvents, readRun, type ChecksView, type RunListRow } from '../wire';
 import { renderAlarmList, type AlarmRow } from './alarm-list';
 import { minSpansFor, renderReadout } from './bench-readout';
 import { outlookRows } from './charge-outlook-view';
 import { phaseLegend } from './phase-legend';
+import { ChecksPanel } from './checks-panel';
 import { recordingBadge, sourceBadge } from './station-status';
 
 const SPANS: { label: string; spanS: number | null }[] = [
@@ -37,7 +38,7 @@ const SPANS: { label: string; spanS: number | null }[] = [
 type Mode =
   | { kind: 'none' }
   | { kind: 'live'; stationId: string }
-  | { kind: 'run'; run: RunListRow; source: RecordedRunSource };
+  | { kind: 'run'; run: RunListRow; source: RecordedRunSource; checks: ChecksView | null };
 
 export class BenchView implements View {
   private mode: Mode = { kind: 'none' };
@@ -69,6 +70,7 @@ export class BenchView implements View {
   private readonly followBtn: HTMLButtonElement;
   private readonly pauseBtn: HTMLButtonElement;
   private readonly spanBtns: HTMLButtonElement[] = [];
+  private readonly checksPanel: ChecksPanel;
 
   constructor(
     private readonly root: HTMLElement,
@@ -76,6 +78,7 @@ export class BenchView implements View {
     private readonly api: Api,
     private readonly nav: Navigator,
   ) {
+    this.checksPanel = new ChecksPanel(api);
     const chartsHost = h('div', { class: 'trend-host' });
     this.panel = new TrendPanel(chartsHost, BENCH_QUANTITIES, (t) => this.onPick(t));
     this.panel.onWindow((w) => this.onWindow(w));
@@ -123,6 +126,8 @@ export class BenchView implements View {
       this.metrics,
       h('h3', { class: 'side-title' }, 'Alarms'),
       this.alarms,
+      h('h3', { class: 'side-title' }, 'Board and checks'),
+      this.checksPanel.el,
     );
     const main = h(
       'div',
@@ -139,6 +144,9 @@ export class BenchView implements View {
     store.on('samples', (id) => {
       if (this.visible && this.mode.kind === 'live' && this.mode.stationId === id)
         this.panel.requestRedraw('data');
+    });
+    store.on('checks', (id) => {
+      if (this.mode.kind === 'live' && this.mode.stationId === id) this.queueRender();
     });
     store.on('events', (id) => {
       if (this.mode.kind === 'live' && this.mode.stationId === id) {
@@ -186,6 +194,17 @@ export class BenchView implements View {
     this.panel.setMinSpans(minSpansFor(model.view.profile));
     this.legendSlot.replaceChildren(phaseLegend(model.view.profile.chemistry));
     this.queueRender();
+    // The latest checks at once; the next ones arrive as pushes.
+    void this.api
+      .request('stations.checks', { stationId })
+      .then((raw) => {
+        const checks = readChecks(raw);
+        if (checks) {
+          model.checks = checks;
+          this.queueRender();
+        }
+      })
+      .catch(() => {});
   }
 
   async openRun(runId: number): Promise<void> {
@@ -194,7 +213,8 @@ export class BenchView implements View {
       const run = readRun(await this.api.request('runs.get', { runId }));
       const events = readEvents(await this.api.request('runs.events', { runId }));
       const source = await RecordedRunSource.open(this.api, runId, run.durationS, run.lines, events);
-      this.mode = { kind: 'run', run, source };
+      const checks = readChecks(await this.api.request('runs.checks', { runId }));
+      this.mode = { kind: 'run', run, source, checks };
       this.pickT = null;
       this.activeSpan = null;
       this.panel.setSource(source);
@@ -391,6 +411,7 @@ export class BenchView implements View {
       `${model.view.label || model.view.id} · ${profile.name}`,
       state.phase === 'fault' || faultAlarm ? (faultAlarm?.t ?? state.t) : null,
     );
+    this.checksPanel.showLive(model.view.id, model.view.board, model.checks);
     const last = state.last;
     this.readouts.replaceChildren(
       ...readout('Pack', formatNumber(last?.vbatV, 3, 'V')),
@@ -446,6 +467,11 @@ export class BenchView implements View {
       firstFault ? firstFault.t : null,
     );
     this.readouts.replaceChildren();
+    if (this.mode.kind === 'run')
+      this.checksPanel.showRun(
+        { boardId: run.boardId ?? null, operator: run.operator ?? null, firmware: run.firmware ?? null },
+        this.mode.checks,
+      );
     this.metrics.replaceChildren(
       ...metric('Charge in', formatNumber(run.ah, 3, 'Ah')),
       ...metric('Energy in', formatNumber(run.wh, 2, 'Wh')),

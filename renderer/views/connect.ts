@@ -4,6 +4,12 @@
  * lines read with it, and add the station or apply the profile to a running one. Every
  * change is checked by `profile.validate`; a refusal shows next to the field it names.
  */
+import {
+  CONNECTABLE_KINDS,
+  parseTcpAddress,
+  SOURCE_KIND_TITLES,
+  type ConnectableSourceConfig,
+} from '@shared/sources/schemas';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { LineOutcome } from '@shared/engine/pipeline';
 import type { Api } from '../api';
@@ -73,7 +79,13 @@ export class ConnectView implements View {
     inputmode: 'decimal',
     value: '60',
   });
-  private sourceKind: 'serial' | 'simulator' = 'simulator';
+  private readonly tcpAddress = h('input', {
+    id: 'tcp-address',
+    type: 'text',
+    placeholder: 'tcp://192.168.1.40:4000',
+    spellcheck: 'false',
+  });
+  private sourceKind: ConnectableSourceConfig['kind'] = 'simulator';
   private selectedPort: PortRow | null = null;
   private selectedScenario: string | null = null;
   private validateTimer = 0;
@@ -98,10 +110,9 @@ export class ConnectView implements View {
     this.previewInput.addEventListener('input', () => this.scheduleValidate());
 
     const kindGroup = h('div', { class: 'kind-group', role: 'radiogroup', 'aria-label': 'Kind of source' });
-    for (const [kind, words] of [
-      ['simulator', 'Simulated charger'],
-      ['serial', 'Serial port'],
-    ] as const) {
+    // The kinds a person can pick, and their words, come from the one table of source kinds.
+    for (const kind of CONNECTABLE_KINDS) {
+      const words = SOURCE_KIND_TITLES[kind];
       const id = `source-kind-${kind}`;
       const radio = h('input', {
         type: 'radio',
@@ -155,6 +166,16 @@ export class ConnectView implements View {
         ),
       ),
     );
+    const tcpPane = h(
+      'div',
+      { class: 'tcp-pane', id: 'tcp-pane' },
+      labelled('tcp-address', 'Address of the board or serial-to-network server', this.tcpAddress),
+      h(
+        'p',
+        { class: 'quiet' },
+        'A raw TCP stream of the same telemetry lines. Lost connections are retried; the run keeps going with a gap.',
+      ),
+    );
     const simPane = h(
       'div',
       { class: 'sim-pane', id: 'sim-pane' },
@@ -193,6 +214,7 @@ export class ConnectView implements View {
           kindGroup,
           simPane,
           serialPane,
+          tcpPane,
           h('h3', {}, 'Station'),
           labelled('station-id', 'Station id (letters, digits, . _ -)', this.stationIdInput),
           labelled('station-label', 'Label (optional)', this.stationLabelInput),
@@ -259,6 +281,8 @@ export class ConnectView implements View {
       this.sourceKind !== 'serial';
     (document.getElementById('sim-pane') ?? this.scenariosHost.parentElement!).hidden =
       this.sourceKind !== 'simulator';
+    (document.getElementById('tcp-pane') ?? this.tcpAddress.parentElement!).hidden =
+      this.sourceKind !== 'tcp';
     if (this.sourceKind === 'serial') void this.loadPorts();
   }
 
@@ -475,9 +499,14 @@ export class ConnectView implements View {
         return `Speed-up must be a positive number (got "${this.speedup.value}").`;
       return { kind: 'simulator', scenario: this.selectedScenario, speedup };
     }
+    if (this.sourceKind === 'tcp') {
+      const tcp = parseTcpAddress(this.tcpAddress.value);
+      if (!tcp) return `Write the address as tcp://HOST:PORT (got "${this.tcpAddress.value}").`;
+      return tcp;
+    }
     const typed = this.typedPath.value.trim();
-    if (typed && !typed.startsWith('/') && !/^[A-Za-z]+:\/\//.test(typed) && !/^COM\d+$/i.test(typed))
-      return `"${typed}" is not a port path: type an absolute path such as /dev/ttyUSB0 or /dev/serial/by-id/…`;
+    if (typed && !typed.startsWith('/') && !/^COM\d+$/i.test(typed))
+      return `"${typed}" is not a port path: type an absolute path such as /dev/ttyUSB0 or /dev/serial/by-id/… (a network port goes under TCP)`;
     if (!typed && !this.selectedPort)
       return 'Pick a serial port, or type its path (press Refresh ports if the list is empty).';
     const p: PortRow = typed ? { path: typed } : this.selectedPort!;

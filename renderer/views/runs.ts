@@ -22,6 +22,30 @@ export class RunsView implements View {
   private readonly status = h('p', { class: 'runs-status', role: 'status', 'aria-live': 'polite' });
   private readonly tableHost = h('div', { class: 'runs-table-host' });
   private readonly speed = h('select', { id: 'replay-speed' });
+  private readonly verdictFilter = h(
+    'select',
+    { id: 'runs-verdict-filter' },
+    ...[
+      ['', 'any verdict'],
+      ['pass', 'pass'],
+      ['fail', 'fail'],
+      ['incomplete', 'incomplete'],
+      ['none', 'not judged'],
+    ].map(([value, label]) => h('option', { value }, label)),
+  );
+  private readonly batchInput = h('input', {
+    id: 'batch-id',
+    type: 'text',
+    autocomplete: 'off',
+    maxlength: '64',
+    placeholder: 'e.g. B7',
+  });
+  private readonly boardFilter = h('input', {
+    id: 'runs-board-filter',
+    type: 'search',
+    autocomplete: 'off',
+    placeholder: 'board id contains…',
+  });
   private runs: RunListRow[] = [];
   /** Runs ticked for the overlay. */
   private readonly compare = new Set<number>();
@@ -35,6 +59,7 @@ export class RunsView implements View {
     'aria-label': 'Search and filter runs',
   });
   private confirming: number | null = null;
+  private filtersWired = false;
 
   constructor(
     root: HTMLElement,
@@ -68,7 +93,12 @@ export class RunsView implements View {
           button('Refresh', () => void this.load(), { class: 'btn' }),
           h('label', { for: 'replay-speed', class: 'field-label' }, 'Replay speed'),
           this.speed,
+          h('label', { for: 'runs-verdict-filter', class: 'field-label' }, 'Verdict'),
+          this.verdictFilter,
+          h('label', { for: 'runs-board-filter', class: 'field-label' }, 'Board'),
+          this.boardFilter,
         ),
+        this.batchForm(),
       ),
       this.filterBar,
       h(
@@ -122,6 +152,11 @@ export class RunsView implements View {
   }
 
   show(): void {
+    if (!this.filtersWired) {
+      this.filtersWired = true;
+      this.verdictFilter.addEventListener('change', () => this.renderTable());
+      this.boardFilter.addEventListener('input', () => this.renderTable());
+    }
     void this.load();
   }
 
@@ -151,16 +186,27 @@ export class RunsView implements View {
       'tr',
       {},
       h('th', { scope: 'col' }, 'Compare'),
-      ...['Run', 'Station', 'Profile', 'Started', 'Duration', 'End reason', 'Charge', 'Lines', 'Actions'].map(
-        (c) => h('th', { scope: 'col' }, c),
-      ),
+      ...[
+        'Run',
+        'Station',
+        'Board',
+        'Batch',
+        'Verdict',
+        'Profile',
+        'Started',
+        'Duration',
+        'End reason',
+        'Charge',
+        'Lines',
+        'Actions',
+      ].map((c) => h('th', { scope: 'col' }, c)),
     );
     const body = h('tbody');
-    const shown = filterRuns(this.runs, this.filter);
+    const shown = filterRuns(this.runs, this.filter).filter((run) => this.passesFilters(run));
     for (const run of shown) body.append(this.row(run));
     if (shown.length === 0)
       body.append(
-        h('tr', {}, h('td', { colspan: 10, class: 'quiet' }, 'No run matches the search and filters.')),
+        h('tr', {}, h('td', { colspan: '13', class: 'quiet' }, 'No run matches the search and filters.')),
       );
     this.tableHost.replaceChildren(
       h(
@@ -245,6 +291,13 @@ export class RunsView implements View {
       h('td', {}, tick),
       h('th', { scope: 'row' }, String(run.id)),
       h('td', {}, run.stationLabel || run.stationId),
+      h('td', { class: 'run-board' }, run.boardId ?? '–'),
+      h('td', { class: 'run-batch' }, run.batchId ?? '–'),
+      h(
+        'td',
+        { class: `run-verdict verdict-${run.verdict ?? 'none'}`, 'data-verdict': run.verdict ?? 'none' },
+        run.verdict ?? 'not judged',
+      ),
       h('td', {}, `${run.profileName} (${run.chemistry})`),
       h('td', {}, formatClock(run.startRxS)),
       h('td', { class: 'num' }, formatDuration(run.durationS)),
@@ -259,6 +312,46 @@ export class RunsView implements View {
     const runs = this.runs.filter((r) => this.compare.has(r.id)).sort((a, b) => a.startRxS - b.startRxS);
     await this.overlay.show(runs, this.alignSelect.value as OverlayAlign);
     this.overlay.root.scrollIntoView({ block: 'start' });
+  }
+
+  /** A burn-in batch: every live station ends its run and begins a run of the batch at once. */
+  private batchForm(): HTMLFormElement {
+    const form = h(
+      'form',
+      { class: 'runs-tools batch-form' },
+      h('label', { for: 'batch-id', class: 'field-label' }, 'Start a burn-in batch'),
+      this.batchInput,
+      h('button', { type: 'submit', class: 'btn' }, 'Start batch on every station'),
+    );
+    form.addEventListener('submit', (e) => {
+      e.preventDefault();
+      void this.startBatch();
+    });
+    return form;
+  }
+
+  private async startBatch(): Promise<void> {
+    const batchId = this.batchInput.value.trim();
+    if (!/^[!-~]{1,64}$/.test(batchId)) {
+      this.status.textContent = 'A batch id is 1–64 characters without spaces; nothing was started.';
+      return;
+    }
+    try {
+      const started = (await this.api.request('stations.startBatch', { batchId })) as unknown[];
+      this.status.textContent = `Batch ${batchId} started on ${started.length} station(s): each began a new run.`;
+      this.batchInput.value = '';
+    } catch (err) {
+      this.status.textContent = `Batch ${batchId} was not started: ${errorText(err)}`;
+    }
+    await this.load();
+  }
+
+  /** Filter by verdict (or "not judged") and by a part of the board id, case-insensitive. */
+  private passesFilters(run: RunListRow): boolean {
+    const verdict = this.verdictFilter.value;
+    if (verdict === 'none' ? run.verdict : verdict && run.verdict !== verdict) return false;
+    const board = this.boardFilter.value.trim().toLowerCase();
+    return !board || (run.boardId ?? '').toLowerCase().includes(board);
   }
 
   private cancelDelete(runId: number): void {

@@ -26,11 +26,28 @@ export const PROFILE_CAUTION =
 const finite = () => z.number().finite();
 const positive = () => z.number().finite().positive();
 
+// Upper bounds: far beyond any charger on a bench, low enough that every figure derived
+// from them (C-rates, per-pack voltages, timers in seconds) stays a finite number, so a
+// typing slip such as 1e308 is refused by its own key instead of overflowing elsewhere.
+const MAX_AH = 1e6;
+const MAX_A = 1e5;
+const MAX_V_PER_CELL = 10; // no chemistry here comes near 5 V per cell
+const MAX_MIN = 1e6; // about two years
+const MAX_S = 1e7;
+const MAX_CAL = 1e9;
+const amps = () => positive().max(MAX_A);
+const voltsPerCell = () => positive().max(MAX_V_PER_CELL);
+const minutes = () => positive().max(MAX_MIN);
+
 const fieldMappingSchema = z.strictObject({
-  key: z.string().min(1),
-  unit: z.string().min(1).optional(),
-  scale: finite().optional(),
-  offset: finite().optional(),
+  key: z.string().min(1).max(200),
+  unit: z.string().min(1).max(20).optional(),
+  scale: finite()
+    .min(-MAX_CAL)
+    .max(MAX_CAL)
+    .refine((v) => v !== 0, 'must not be 0: every reading would become the offset')
+    .optional(),
+  offset: finite().min(-MAX_CAL).max(MAX_CAL).optional(),
 });
 
 const fieldsSchema = z.strictObject({
@@ -47,13 +64,42 @@ const fieldsSchema = z.strictObject({
 });
 
 const dividerShape = {
-  pullupOhm: positive().optional(),
-  pulldownOhm: positive().optional(),
-  adcMax: z.number().int().positive().optional(),
+  pullupOhm: positive().max(1e9).optional(),
+  pulldownOhm: positive().max(1e9).optional(),
+  adcMax: z
+    .number()
+    .int()
+    .positive()
+    .max(2 ** 32)
+    .optional(),
 };
 
+/** `[min, max]` of one design value; a reversed pair is refused with the key named. */
+const rangeSchema = () =>
+  z
+    .tuple([finite(), finite()])
+    .refine(([min, max]) => min <= max, { message: 'must be [min, max] with min at most max' });
+
+/** `expect`: what the board was designed to do, each key a `[min, max]` in its unit (board checks). */
+const expectSchema = z.strictObject({
+  chargeCurrentA: rangeSchema().optional(),
+  regulationV: rangeSchema().optional(),
+  terminationA: rangeSchema().optional(),
+  preconditionA: rangeSchema().optional(),
+  timerMin: rangeSchema().optional(),
+  efficiency: rangeSchema().optional(),
+  tempRiseC: rangeSchema().optional(),
+  inputV: rangeSchema().optional(),
+  chargeTimeMin: rangeSchema().optional(),
+});
+
 const thermistorSchema = z.discriminatedUnion('model', [
-  z.strictObject({ model: z.literal('beta'), r25: positive(), beta: positive(), ...dividerShape }),
+  z.strictObject({
+    model: z.literal('beta'),
+    r25: positive().max(1e9),
+    beta: positive().max(1e5),
+    ...dividerShape,
+  }),
   z.strictObject({
     model: z.literal('steinhart-hart'),
     a: finite(),
@@ -68,27 +114,28 @@ export const profileSchema = z.strictObject({
   name: z.string().min(1).max(200).optional(),
   chemistry: z.enum(CHEMISTRIES as [Chemistry, ...Chemistry[]]),
   cells: z.number().int().min(1).max(64),
-  capacityAh: positive().optional(),
-  chargeCurrentA: positive().optional(),
-  terminationA: positive().optional(),
-  timerMin: positive().nullable().optional(),
+  capacityAh: positive().max(MAX_AH).optional(),
+  chargeCurrentA: amps().optional(),
+  terminationA: amps().optional(),
+  timerMin: minutes().nullable().optional(),
   tempWindowC: z.tuple([finite(), finite()]).optional(),
-  inputSetpointV: positive().nullable().optional(),
-  regulationVPerCell: positive().optional(),
-  overvoltageVPerCell: positive().optional(),
-  preconditionVPerCell: positive().optional(),
-  preconditionA: positive().optional(),
-  preconditionTimeoutMin: positive().optional(),
-  stallMin: positive().optional(),
-  silenceS: positive().optional(),
+  inputSetpointV: positive().max(1e5).nullable().optional(),
+  regulationVPerCell: voltsPerCell().optional(),
+  overvoltageVPerCell: voltsPerCell().optional(),
+  preconditionVPerCell: voltsPerCell().optional(),
+  preconditionA: amps().optional(),
+  preconditionTimeoutMin: minutes().optional(),
+  stallMin: minutes().optional(),
+  silenceS: positive().max(MAX_S).optional(),
   // Beyond the common keys of docs/profile.md: the chemistry-specific limits of ResolvedProfile, so a gel battery
   // (float 2.25 V, −5 mV/°C) or a particular NiMH cell can be described without code changes.
-  floatVPerCell: positive().optional(),
-  minusDeltaVPerCell: positive().optional(),
-  dTdtCPerMin: positive().optional(),
-  tempCompVPerCPerCell: finite().max(0).optional(),
+  floatVPerCell: voltsPerCell().optional(),
+  minusDeltaVPerCell: positive().max(1).optional(),
+  dTdtCPerMin: positive().max(100).optional(),
+  tempCompVPerCPerCell: finite().min(-0.1).max(0).optional(),
   fields: fieldsSchema.optional(),
   thermistor: thermistorSchema.optional(),
+  expect: expectSchema.optional(),
 });
 
 export type ProfileInput = z.infer<typeof profileSchema>;
@@ -98,12 +145,54 @@ export type ProfileOverrides = Omit<ProfileInput, 'chemistry' | 'cells'>;
 
 function show(value: unknown): string {
   if (value === undefined) return 'nothing';
+  if (value !== null && typeof value === 'object' && nestingDepth(value, 4) > 3)
+    return Array.isArray(value) ? 'a nested array' : 'a nested object';
   try {
     const text = JSON.stringify(value);
     return text.length > 60 ? `${text.slice(0, 57)}...` : text;
   } catch {
-    return String(value);
+    return Array.isArray(value) ? 'an array' : typeof value;
   }
+}
+
+/** A profile is at most this deep (fields.vbat.key is 3); deeper input is refused before validation. */
+const MAX_PROFILE_DEPTH = 4;
+
+/** Depth of nested objects/arrays, counted without recursion and without going past `limit`. */
+function nestingDepth(value: unknown, limit: number): number {
+  let deepest = 0;
+  const stack: [unknown, number][] = [[value, 1]];
+  while (stack.length > 0) {
+    const [v, depth] = stack.pop() as [unknown, number];
+    if (v === null || typeof v !== 'object') continue;
+    if (depth > deepest) deepest = depth;
+    if (depth > limit) return depth;
+    for (const child of Object.values(v as object)) stack.push([child, depth + 1]);
+  }
+  return deepest;
+}
+
+/** The first key path at which the input nests deeper than a profile can, or null. */
+function tooDeep(input: unknown): ProfileResult | null {
+  // Not an object at all: the schema says so (and describes the value without printing it).
+  if (input === null || typeof input !== 'object' || Array.isArray(input)) return null;
+  const stack: [unknown, string[]][] = [[input, []]];
+  while (stack.length > 0) {
+    const [v, path] = stack.pop() as [unknown, string[]];
+    if (v === null || typeof v !== 'object') continue;
+    if (path.length >= MAX_PROFILE_DEPTH) {
+      const key = path.join('.');
+      return {
+        ok: false,
+        key,
+        error:
+          `${key}: nested deeper than any profile key can be (the deepest is fields.<field>.key); ` +
+          'check that the file is a profile (got a deeply nested value)',
+      };
+    }
+    for (const [k, child] of Object.entries(v as Record<string, unknown>)) stack.push([child, [...path, k]]);
+  }
+  return null;
 }
 
 function fail(key: string, why: string, got: unknown): ProfileResult {
@@ -114,6 +203,7 @@ function fail(key: string, why: string, got: unknown): ProfileResult {
 function knownKeysAt(path: string[], input: unknown): string[] {
   if (path.length === 0) return Object.keys(profileSchema.shape);
   if (path.length === 1 && path[0] === 'fields') return Object.keys(fieldsSchema.shape);
+  if (path.length === 1 && path[0] === 'expect') return Object.keys(expectSchema.shape);
   if (path.length === 2 && path[0] === 'fields') return Object.keys(fieldMappingSchema.shape);
   if (path.length === 1 && path[0] === 'thermistor') {
     const model = input && typeof input === 'object' ? (input as Record<string, unknown>).model : undefined;
@@ -291,6 +381,11 @@ function resolve(input: ProfileInput): ProfileResult {
         th.pulldownOhm,
       );
     }
+    if (th.model === 'steinhart-hart') {
+      const curve = steinhartHartProblem(th.a, th.b, th.c);
+      if (curve)
+        return fail(curve.key, curve.why, th[curve.key.slice('thermistor.'.length) as 'a' | 'b' | 'c']);
+    }
     if (th.adcMax !== undefined && th.pullupOhm === undefined && th.pulldownOhm === undefined) {
       return fail(
         'thermistor.adcMax',
@@ -324,7 +419,9 @@ function resolve(input: ProfileInput): ProfileResult {
     cells: input.cells,
     capacityAh,
     chargeCurrentA,
-    terminationA: pick('terminationA', round6(capacityAh * d.terminationC)),
+    // Capped at half the charge current, as precondition is capped at it: a small charger
+    // on a big pack still gets a CV taper to end on (common practice).
+    terminationA: pick('terminationA', round6(Math.min(capacityAh * d.terminationC, chargeCurrentA / 2))),
     timerMin,
     tempWindowC: [...pick('tempWindowC', d.tempWindowC)] as [number, number],
     inputSetpointV: input.inputSetpointV ?? null,
@@ -347,8 +444,36 @@ function resolve(input: ProfileInput): ProfileResult {
     defaulted,
   };
   if (th) profile.thermistor = th;
+  if (input.expect) profile.expect = input.expect;
   const given = new Set(Object.keys(input));
   return checkConsistency(profile, given) ?? { ok: true, profile };
+}
+
+/**
+ * Whether Steinhart-Hart coefficients describe an NTC at all: 1/T = a + b ln R + c (ln R)^3
+ * (Steinhart and Hart, Deep Sea Research 15 (1968) 497-503) must give a temperature above
+ * absolute zero that falls as R rises, checked at 1 kΩ, 10 kΩ and 100 kΩ (the usual NTC range).
+ */
+function steinhartHartProblem(a: number, b: number, c: number): { key: string; why: string } | null {
+  if (a === 0 && b === 0 && c === 0)
+    return {
+      key: 'thermistor.a',
+      why: 'a, b and c are all 0, which is no thermistor curve; take them from the NTC datasheet',
+    };
+  for (const ohm of [1e3, 1e4, 1e5]) {
+    const lnR = Math.log(ohm);
+    const inverseK = a + b * lnR + c * lnR ** 3;
+    const slope = b + 3 * c * lnR ** 2; // d(1/T)/d(ln R): positive for an NTC
+    if (!(inverseK > 0) || !Number.isFinite(1 / inverseK) || !(slope > 0)) {
+      return {
+        key: 'thermistor.b',
+        why:
+          `with a=${a}, b=${b}, c=${c} the curve gives no NTC temperature at ${ohm} Ω ` +
+          '(1/T must be above 0 and rise with resistance); check the coefficients and their order',
+      };
+    }
+  }
+  return null;
 }
 
 function round6(x: number): number {
@@ -357,6 +482,8 @@ function round6(x: number): number {
 
 /** Validate a profile (docs/profile.md) and fill in every default. Never throws. */
 export function parseProfile(input: unknown): ProfileResult {
+  const deep = tooDeep(input);
+  if (deep) return deep;
   const parsed = profileSchema.safeParse(input, { reportInput: true });
   if (!parsed.success) return describeIssue(parsed.error.issues[0]);
   return resolve(parsed.data);

@@ -38,9 +38,25 @@ export interface ResolvedProfile {
   tempCompVPerCPerCell: number | null;
   fields: FieldMap;
   thermistor?: ThermistorModel;
+  /** What the board was designed to do: `[min, max]` per key, in the key's unit (board checks). */
+  expect?: ExpectRanges;
   /** Keys filled from the chemistry's defaults (or assumed) rather than given by the profile. */
   defaulted?: string[];
 }
+
+/** The `expect` keys of a profile, each in the unit its name carries (efficiency 0..1). */
+export type ExpectKey =
+  | 'chargeCurrentA'
+  | 'regulationV'
+  | 'terminationA'
+  | 'preconditionA'
+  | 'timerMin'
+  | 'efficiency'
+  | 'tempRiseC'
+  | 'inputV'
+  | 'chargeTimeMin';
+
+export type ExpectRanges = Partial<Record<ExpectKey, [number, number]>>;
 
 /** Result of validating a profile. `error` names the bad key and why. */
 export type ProfileResult =

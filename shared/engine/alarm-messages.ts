@@ -3,13 +3,19 @@
  * alarm is raised, never per sample.
  */
 import type { ResolvedProfile } from '../chemistry/types';
+import { formatRunClock } from './time-format';
 
 const f = (x: number, digits: number): string => (x === x ? x.toFixed(digits) : '?');
 const minutes = (s: number): string => `${Math.round(s / 60)} min`;
 
-export function overtempMessage(tempC: number, highC: number): string {
+export function overtempMessage(tempC: number, highC: number, cutoffC = highC): string {
+  if (tempC <= cutoffC)
+    return (
+      `Pack at ${f(tempC, 1)} °C, above the ${f(highC, 0)} °C top of the charge window of this profile ` +
+      `(cut-off ${f(cutoffC, 0)} °C); reduce the charge current or cool the pack, and watch that it does not keep rising.`
+    );
   return (
-    `Pack at ${f(tempC, 1)} °C, above the ${f(highC, 0)} °C charge limit of this profile; ` +
+    `Pack at ${f(tempC, 1)} °C, above the ${f(cutoffC, 0)} °C charge ${cutoffC === highC ? 'limit' : 'cut-off'} of this profile; ` +
     'stop charging and let it cool; check the thermistor contact and the airflow around the pack.'
   );
 }
@@ -25,10 +31,19 @@ export function undertempMessage(tempC: number, lowC: number, p: ResolvedProfile
   );
 }
 
-export function overvoltageMessage(vbatV: number, p: ResolvedProfile): string {
+export function overvoltageMessage(
+  vbatV: number,
+  p: ResolvedProfile,
+  limitVPerCell = p.overvoltageVPerCell,
+  tempC = NaN,
+): string {
+  const compensated =
+    limitVPerCell !== p.overvoltageVPerCell && tempC === tempC
+      ? ` (${f(p.overvoltageVPerCell, 2)} V/cell at 25 °C, compensated to ${f(tempC, 1)} °C)`
+      : '';
   return (
-    `Pack at ${f(vbatV, 2)} V (${f(vbatV / p.cells, 3)} V/cell), above the ${f(p.overvoltageVPerCell, 2)} V/cell ` +
-    `limit for ${p.chemistry}; disconnect the charger now, then check its voltage set point and that the ` +
+    `Pack at ${f(vbatV, 2)} V (${f(vbatV / p.cells, 3)} V/cell), above the ${f(limitVPerCell, 2)} V/cell ` +
+    `limit for ${p.chemistry}${compensated}; disconnect the charger now, then check its voltage set point and that the ` +
     `pack really has ${p.cells} cell${p.cells === 1 ? '' : 's'} in series as the profile says.`
   );
 }
@@ -100,5 +115,31 @@ export function reverseCurrentMessage(ibatA: number, limitA: number): string {
   return (
     `The pack is discharging into the charger at ${f(ibatA, 3)} A (limit ${f(-limitA, 3)} A, C/50) while a ` +
     'source is present; check for a charger that leaks backwards, a load on the pack, or a current sensor wired the wrong way.'
+  );
+}
+
+export function sensorFaultMessage(detail: string): string {
+  return (
+    `Temperature protection is blind: ${detail}. The charge goes on without a temperature limit; ` +
+    'stop charging, then check the thermistor, its connector and its wires (an open NTC reads at the ADC rail), ' +
+    "and the profile's thermistor settings."
+  );
+}
+
+export function contactMessage(
+  openings: number,
+  steps: number,
+  windowS: number,
+  lastT: number,
+  critical: boolean,
+): string {
+  const parts: string[] = [];
+  if (openings > 0) parts.push(`the current dropped to zero and came back ${openings} time(s)`);
+  if (steps > 0) parts.push(`the pack voltage stepped ${steps} time(s) with no current step`);
+  return (
+    `Intermittent contact: ${parts.join(' and ')} in the last ${minutes(windowS)} (the last at ${formatRunClock(lastT)})` +
+    (critical ? ', and it keeps repeating' : '') +
+    '; check the pack connector, crimps and screw terminals for looseness, corrosion or heat, ' +
+    'wiggle each while watching the Line feed, and do not leave the charge unattended until it is fixed.'
   );
 }

@@ -29,6 +29,11 @@ export const ALARM_RULES: Readonly<Record<AlarmCode, AlarmRule>> = {
   silence: { level: 'warn', raiseAfterS: 0, clearAfterS: 0 },
   'fault-pin': { level: 'critical', raiseAfterS: 0, clearAfterS: 3 },
   'reverse-current': { level: 'warn', raiseAfterS: 5, clearAfterS: 5 },
+  // A blind temperature sensor while charging: critical, after the same 3 s noise filter as overtemp.
+  'sensor-fault': { level: 'critical', raiseAfterS: 3, clearAfterS: 10 },
+  // Raised as a warning on repeated contact evidence, escalated to critical when it keeps
+  // repeating within minutes (see CONTACT_* in run-engine); cleared after a quiet window.
+  contact: { level: 'warn', raiseAfterS: 0, clearAfterS: 0 },
 };
 
 export const ALARM_INDEX: Readonly<Record<AlarmCode, number>> = Object.fromEntries(
@@ -66,6 +71,16 @@ export class AlarmBook {
     }
     if (this.clearSince[i] !== this.clearSince[i]) this.clearSince[i] = t;
     return t - this.clearSince[i] >= this.clearAfter[i] ? CLEAR : KEEP;
+  }
+
+  /** The raised alarm i, or null. */
+  get(i: number): AlarmEvent | null {
+    return this.active[i];
+  }
+
+  /** The raising condition of alarm i holds and waits out its raise delay. */
+  isPending(i: number): boolean {
+    return this.active[i] === null && this.raiseSince[i] === this.raiseSince[i];
   }
 
   isActive(i: number): boolean {

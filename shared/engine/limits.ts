@@ -36,6 +36,12 @@ export interface EngineLimits {
   overvoltageClearVPerCell: number;
   tempLowC: number;
   tempHighC: number;
+  /**
+   * Above this, overtemp is critical; between tempHighC and it, a warning. Equal to tempHighC
+   * except for NiMH, whose charge window (0–40 °C) is the rapid-charge range and whose cut-off
+   * is higher (see deriveLimits).
+   */
+  tempCutoffC: number;
   tempHysteresisC: number;
   inputSetpointV: number | null;
   /** Fraction over the set point still counted "at" it, and the clear threshold. */
@@ -66,6 +72,9 @@ export interface EngineLimits {
 export function resistanceStepA(p: ResolvedProfile): number {
   return Math.max(0.05, 0.2 * p.chargeCurrentA);
 }
+
+/** NiMH absolute temperature cut-off for A, AA and D cells: Panasonic NiMH charge methods (published). */
+export const NIMH_CUTOFF_C = 55;
 
 export function deriveLimits(p: ResolvedProfile): EngineLimits {
   const c = p.capacityAh;
@@ -105,6 +114,10 @@ export function deriveLimits(p: ResolvedProfile): EngineLimits {
     overvoltageClearVPerCell: p.overvoltageVPerCell * 0.995,
     tempLowC: p.tempWindowC[0],
     tempHighC: p.tempWindowC[1],
+    // NiMH: rapid charge within 0–40 °C, absolute temperature cut-off 55 °C for A/AA/D cells
+    // (Panasonic "Charge Methods for Nickel Metal Hydride Batteries", published); the end-of-charge
+    // warming between the two is what dT/dt termination is for, so it is only a warning.
+    tempCutoffC: p.chemistry === 'nimh' ? Math.max(p.tempWindowC[1], NIMH_CUTOFF_C) : p.tempWindowC[1],
     // 1 °C hysteresis on the temperature window (common practice for NTC limits).
     tempHysteresisC: 1,
     inputSetpointV: p.inputSetpointV,
@@ -129,7 +142,10 @@ export function deriveLimits(p: ResolvedProfile): EngineLimits {
   };
 }
 
-/** Lead-acid set points move with temperature around 25 °C (BU-403, published); others do not. */
+/**
+ * Lead-acid set points move with temperature around 25 °C (BU-403, published); others do not.
+ * The overvoltage limit moves with them, so a correctly compensated cold bank is not flagged.
+ */
 export function compensate(lim: EngineLimits, vPerCell: number, tempC: number): number {
   if (lim.tempCompVPerCPerCell === null || tempC !== tempC) return vPerCell;
   return vPerCell + lim.tempCompVPerCPerCell * (tempC - 25);

@@ -31,6 +31,8 @@ export class PhaseMachine {
   private started = false;
   private pending: UnderlyingPhase = 'idle';
   private pendingSinceT = NaN;
+  /** Lead-acid: absorption (cv) was reached in this charge, so float may follow. */
+  private absorbed = false;
   /** The last charge current that counted as flowing: tells a finished taper from a dropout. */
   private lastFlowingA = Infinity;
 
@@ -81,9 +83,16 @@ export class PhaseMachine {
     if (lim.isLeadAcid && lim.floatVPerCell !== null) {
       const floatV = compensate(lim, lim.floatVPerCell, tempC);
       const band = floatV * lim.floatBandFraction;
-      // Float (= done): held at the float voltage with the current down at termination, or
-      // dropped there from absorption with only a small current.
-      if (vPerCell <= floatV + band && vPerCell >= floatV - band && currentA <= lim.terminationA)
+      // Float (= done) comes after absorption (three-stage charge: bulk, absorption, float;
+      // BU-403): held at the float voltage with the current down at termination once absorption
+      // was reached, or when the charger itself says it is not charging (it floats). A bank still
+      // rising through the float band under a weak source's small bulk current is not done.
+      if (
+        (this.absorbed || v.chg === 0) &&
+        vPerCell <= floatV + band &&
+        vPerCell >= floatV - band &&
+        currentA <= lim.terminationA
+      )
         return 'done';
       if ((prev === 'cv' || prev === 'done') && vPerCell <= floatV + band && currentA < lim.resumeA)
         return 'done';
@@ -142,7 +151,12 @@ export class PhaseMachine {
     this.phase = phase;
     this.sinceT = t;
     this.pendingSinceT = NaN;
-    // A new charge episode starts from idle: −ΔV detection re-arms.
-    if (phase === 'idle') this.nimh.reset();
+    // A new charge episode starts from idle: −ΔV detection re-arms, and lead-acid must go
+    // through absorption again before float.
+    if (phase === 'idle') {
+      this.nimh.reset();
+      this.absorbed = false;
+    }
+    if (phase === 'cv') this.absorbed = true;
   }
 }

@@ -4,7 +4,9 @@
  * numbers in place and allocates only the events it returns.
  */
 import type { ResolvedProfile } from '../chemistry/types';
+import { thermistorTemperature } from '../chemistry/thermistor';
 import {
+  contactMessage,
   faultPinMessage,
   inputLowMessage,
   overtempMessage,
@@ -12,6 +14,7 @@ import {
   preconditionFaultMessage,
   preconditionTimeoutMessage,
   reverseCurrentMessage,
+  sensorFaultMessage,
   silenceMessage,
   stallMessage,
   timerMessage,
@@ -25,6 +28,7 @@ import {
   KEEP as KEPT,
   RAISE as RAISED,
 } from './alarms';
+import { CONTACT_NONE, CONTACT_OPENING, ContactWatch, contactLimits } from './contact-watch';
 import { deriveLimits, type EngineLimits } from './limits';
 import { EnergyCounter, MpptTracking, SocEstimator, StepResistance, TaperModel } from './metrics';
 import { isChargingPhase as isChargingPhaseImport, PhaseMachine } from './phase-machine';
@@ -34,6 +38,7 @@ import {
   ALARM_CODES,
   PHASES,
   type AlarmEvent,
+  type AlarmLevel,
   type EngineEvent,
   type Phase,
   type RunEngine,
@@ -65,10 +70,29 @@ const INPUT_LOW = ALARM_INDEX['input-low'];
 const SILENCE = ALARM_INDEX.silence;
 const FAULT_PIN = ALARM_INDEX['fault-pin'];
 const REVERSE_CURRENT = ALARM_INDEX['reverse-current'];
+const SENSOR_FAULT = ALARM_INDEX['sensor-fault'];
+const CONTACT = ALARM_INDEX.contact;
+
+/** Contact evidence within a minute of the last is the same episode (one opening can also step the voltage). */
+const CONTACT_EPISODE_S = 60;
+/** `contact` is raised (warn) at 2 episodes within 15 min, and clears after 15 quiet minutes (common practice). */
+const CONTACT_WARN_WINDOW_S = 900;
+const CONTACT_WARN_EPISODES = 2;
+/** ...and becomes critical at 3 episodes within 10 min: it keeps repeating (common practice). */
+const CONTACT_CRITICAL_WINDOW_S = 600;
+const CONTACT_CRITICAL_EPISODES = 3;
+/** A warning escalates to critical after its critical condition held this long (the 3 s sensor-noise filter). */
+const ESCALATE_AFTER_S = 3;
 
 const PHASE_INDEX: Readonly<Record<Phase, number>> = Object.fromEntries(
   PHASES.map((p, i) => [p, i]),
 ) as Record<Phase, number>;
+
+/** A time figure shown to a person: finite and not negative, else unknown. */
+function seconds(s: number | null): number | null {
+  if (s === null || !Number.isFinite(s)) return null;
+  return s < 0 ? 0 : s;
+}
 
 export function createRunEngine(profile: ResolvedProfile): RunEngine {
   return new Engine(profile);
@@ -115,6 +139,18 @@ class Engine implements RunEngine {
 
   private out: EngineEvent[] | null = null;
 
+  private readonly contact: ContactWatch;
+  /** Start times of the recent contact episodes (oldest first). */
+  private readonly contactEpisodes: number[] = [];
+  private contactOpenings = 0;
+  private contactSteps = 0;
+  private typicalDtS = 1;
+  /** Overvoltage limit per cell in force (compensated for lead-acid), for the message. */
+  private ovLimitVPerCell: number;
+  private overtempCriticalSinceT = NaN;
+  /** Why temperature protection is blind (empty when it is not), set per sample or by blindSensor. */
+  private blindDetail = '';
+
   constructor(private readonly profile: ResolvedProfile) {
     this.lim = deriveLimits(profile);
     this.view = new SampleView(profile.cells);
@@ -122,6 +158,8 @@ class Engine implements RunEngine {
     this.resistance = new StepResistance(this.lim.irStepA, this.lim.irMaxDtS);
     this.soc = new SocEstimator(this.lim.capacityAh, this.lim.capacityKnown);
     this.progress = new ProgressTracker(this.lim.stallRiseVPerCell, this.lim.stallRiseAh);
+    this.contact = new ContactWatch(contactLimits(profile));
+    this.ovLimitVPerCell = this.lim.overvoltageVPerCell;
   }
 
   push(sample: TimedSample): EngineEvent[] {
@@ -140,14 +178,28 @@ class Engine implements RunEngine {
     } else {
       const dtS = t > this.lastT ? t - this.lastT : 0;
       if (this.bridgeNext) {
-        this.bridgeNext = false;
+        // The interval over a reported interruption. A line placed with no elapsed time (a time
+        // glitch) does not cross it yet: the bridge waits for the first line that moves on.
+        if (dtS > 0) this.bridgeNext = false;
         this.progress.restart();
-      } else {
-        this.accumulate(dtS);
-        // Replays do not tick: a hole in the data is a silence of its own.
-        if (dtS > lim.silenceS && !this.book.isActive(SILENCE)) {
+        this.contact.reset();
+      } else if (dtS > lim.silenceS) {
+        // A gap: no accepted line for longer than silenceS. Nothing is integrated across it (charge,
+        // energy, phase time, timers). Replays do not tick: the hole is a silence of its own too.
+        if (!this.book.isActive(SILENCE)) {
           this.raise(SILENCE, this.lastT + lim.silenceS, silenceMessage(dtS, lim.silenceS));
         }
+        this.emit({
+          type: 'gap',
+          t: this.lastT,
+          endT: t,
+          durationS: dtS,
+          reason: `no accepted telemetry line for ${Math.round(dtS)} s`,
+        });
+        this.progress.restart();
+        this.contact.reset();
+      } else {
+        this.accumulate(dtS);
       }
       if (this.book.isActive(SILENCE)) this.clear(SILENCE, t);
     }
@@ -164,6 +216,7 @@ class Engine implements RunEngine {
     if (machine.phase === 'cc' || machine.phase === 'cv' || machine.phase === 'done') this.preconditionS = 0;
     if (machine.phase === 'done') this.chargeS = 0;
 
+    this.blindDetail = this.blindFrom(v, sample);
     this.evaluateAlarms(t);
 
     const faulted =
@@ -251,16 +304,44 @@ class Engine implements RunEngine {
       t,
       book.step(OVERTEMP, t, charging && tempC > lim.tempHighC, tempC <= lim.tempHighC - lim.tempHysteresisC),
     );
+    // Over the window but under the cut-off is a warning (NiMH); past the cut-off it becomes critical.
+    const overtemp = book.get(OVERTEMP);
+    if (overtemp !== null && overtemp.level === 'warn' && charging && tempC > lim.tempCutoffC) {
+      if (this.overtempCriticalSinceT !== this.overtempCriticalSinceT) this.overtempCriticalSinceT = t;
+      if (t - this.overtempCriticalSinceT >= ESCALATE_AFTER_S) {
+        this.overtempCriticalSinceT = NaN;
+        this.raise(OVERTEMP, t, overtempMessage(tempC, lim.tempHighC, lim.tempCutoffC), 'critical');
+      }
+    } else this.overtempCriticalSinceT = NaN;
     this.act(
       UNDERTEMP,
       t,
       book.step(UNDERTEMP, t, charging && tempC < lim.tempLowC, tempC >= lim.tempLowC + lim.tempHysteresisC),
     );
+    // Lead-acid: the limit follows the set points' temperature compensation (BU-403; Trojan gel).
+    let ovV = lim.overvoltageVPerCell;
+    let ovClearV = lim.overvoltageClearVPerCell;
+    const comp = lim.tempCompVPerCPerCell;
+    if (comp !== null && tempC === tempC) {
+      const shiftV = comp * (tempC - 25);
+      ovV += shiftV;
+      ovClearV += shiftV;
+    }
+    this.ovLimitVPerCell = ovV;
+    this.act(OVERVOLTAGE, t, book.step(OVERVOLTAGE, t, vPerCell > ovV, vPerCell < ovClearV));
+    // Blind while charging; a charger that stops because of the blind sensor does not end the episode.
+    const blind = this.blindDetail !== '';
     this.act(
-      OVERVOLTAGE,
+      SENSOR_FAULT,
       t,
-      book.step(OVERVOLTAGE, t, vPerCell > lim.overvoltageVPerCell, vPerCell < lim.overvoltageClearVPerCell),
+      book.step(
+        SENSOR_FAULT,
+        t,
+        blind && (charging || book.isPending(SENSOR_FAULT)),
+        !blind && tempC === tempC,
+      ),
     );
+    this.watchContact(t, charging);
 
     const vinV = v.vinV;
     if (vinV === vinV) {
@@ -309,11 +390,11 @@ class Engine implements RunEngine {
     const lim = this.lim;
     switch (i) {
       case OVERTEMP:
-        return overtempMessage(v.tempC, lim.tempHighC);
+        return overtempMessage(v.tempC, lim.tempHighC, lim.tempCutoffC);
       case UNDERTEMP:
         return undertempMessage(v.tempC, lim.tempLowC, p);
       case OVERVOLTAGE:
-        return overvoltageMessage(v.vbatV, p);
+        return overvoltageMessage(v.vbatV, p, this.ovLimitVPerCell, v.tempC);
       case STALL:
         return stallMessage(
           this.stalledS,
@@ -334,15 +415,77 @@ class Engine implements RunEngine {
         return faultPinMessage(v.vbatV, v.ibatA, v.tempC);
       case REVERSE_CURRENT:
         return reverseCurrentMessage(v.ibatA, lim.reverseA);
+      case SENSOR_FAULT:
+        return sensorFaultMessage(this.blindDetail);
       default:
         // silence builds its message where it is raised (it needs the quiet time).
         return silenceMessage(0, lim.silenceS);
     }
   }
 
-  private raise(i: number, t: number, message: string): void {
+  /** Overtemp: a warning under the cut-off (NiMH's window top), critical past it. */
+  private overtempLevel(tempC: number): AlarmLevel | undefined {
+    return tempC > this.lim.tempCutoffC ? 'critical' : 'warn';
+  }
+
+  /** Temperature protection is blind: a thermistor reading with no temperature (rail, beyond full scale). */
+  private blindFrom(v: SampleView, sample: TimedSample): string {
+    if (v.ntcRaw !== v.ntcRaw || v.tempC === v.tempC) return '';
+    const model = this.profile.thermistor;
+    if (model === undefined) return '';
+    const why = thermistorTemperature(model, v.ntcRaw);
+    const raw = `ntc=${sample.ntcRaw}`;
+    if (why.ok) return ''; // converted after all (the parser read it as ohms): not blind
+    switch (why.reason) {
+      case 'open':
+        return `${raw} reads at the ADC rail: the thermistor is open (a broken wire or connector)`;
+      case 'short':
+        return `${raw} reads at the ADC rail: the thermistor is shorted`;
+      case 'bad-model':
+        return `${raw} cannot be converted: the profile's thermistor model is not valid`;
+      default:
+        return `${raw} is beyond the ADC's full scale or the thermistor curve`;
+    }
+  }
+
+  /** Contact evidence from the shared detector; raise, escalate and clear `contact`. */
+  private watchContact(t: number, charging: boolean): void {
+    const v = this.view;
+    const seen = this.contact.feed(t, v.vbatV, v.ibatA, Math.max(5, 3 * this.typicalDtS), v.sourceAbsent());
+    const episodes = this.contactEpisodes;
+    if (seen !== CONTACT_NONE && charging) {
+      if (seen === CONTACT_OPENING) this.contactOpenings++;
+      else this.contactSteps++;
+      const last = episodes.length ? episodes[episodes.length - 1] : -Infinity;
+      if (t - last > CONTACT_EPISODE_S) episodes.push(t);
+    }
+    while (episodes.length && t - episodes[0] > CONTACT_WARN_WINDOW_S) episodes.shift();
+    const active = this.book.get(CONTACT);
+    if (episodes.length === 0) {
+      if (active !== null) this.clear(CONTACT, t);
+      this.contactOpenings = 0;
+      this.contactSteps = 0;
+      return;
+    }
+    if (seen === CONTACT_NONE || !charging) return;
+    let recent = 0;
+    for (const e of episodes) if (t - e <= CONTACT_CRITICAL_WINDOW_S) recent++;
+    const critical = recent >= CONTACT_CRITICAL_EPISODES;
+    if (active === null ? episodes.length >= CONTACT_WARN_EPISODES : critical && active.level === 'warn') {
+      const windowS = Math.min(CONTACT_WARN_WINDOW_S, Math.max(60, t - episodes[0]));
+      this.raise(
+        CONTACT,
+        t,
+        contactMessage(this.contactOpenings, this.contactSteps, windowS, t, critical),
+        critical ? 'critical' : 'warn',
+      );
+    }
+  }
+
+  private raise(i: number, t: number, message: string, level?: AlarmLevel): void {
     const code = ALARM_CODES[i];
-    const event: AlarmEvent = { type: 'alarm', t, code, level: ALARM_RULES[code].level, message };
+    const lvl = level ?? (i === OVERTEMP ? this.overtempLevel(this.view.tempC) : ALARM_RULES[code].level);
+    const event: AlarmEvent = { type: 'alarm', t, code, level: lvl as AlarmLevel, message };
     this.book.raised(i, event);
     this.emit(event);
   }
@@ -355,6 +498,21 @@ class Engine implements RunEngine {
   private emit(event: EngineEvent): void {
     if (this.out === null) this.out = [event];
     else this.out.push(event);
+  }
+
+  blindSensor(t: number, detail: string): EngineEvent[] {
+    if (!this.started) return NO_EVENTS;
+    this.out = null;
+    const at = t > this.lastT ? t : this.lastT;
+    const charging = isChargingPhase(this.machine.phase) || this.view.ibatA >= this.lim.flowOnA;
+    this.blindDetail = detail;
+    const book = this.book;
+    this.act(SENSOR_FAULT, at, book.step(SENSOR_FAULT, at, charging || book.isPending(SENSOR_FAULT), false));
+    return this.out ?? NO_EVENTS;
+  }
+
+  setTypicalInterval(intervalS: number): void {
+    if (intervalS > 0 && Number.isFinite(intervalS)) this.typicalDtS = intervalS;
   }
 
   tick(t: number): EngineEvent[] {
@@ -386,14 +544,14 @@ class Engine implements RunEngine {
       this.lastClosedGapEndT = endT;
       // Bridge only when no sample arrived since the interruption began.
       this.bridgeNext = this.started && this.lastT <= from;
-      this.emit({ type: 'gap', t: from, endT, reason: reason || this.gapReason });
+      this.emit({ type: 'gap', t: from, endT, durationS: endT - from, reason: reason || this.gapReason });
       return this.out ?? NO_EVENTS;
     }
     if (startT === this.lastClosedGapStartT && endT === this.lastClosedGapEndT) return NO_EVENTS;
     this.lastClosedGapStartT = startT;
     this.lastClosedGapEndT = endT;
     this.bridgeNext = this.started && this.lastT <= startT;
-    this.emit({ type: 'gap', t: startT, endT, reason });
+    this.emit({ type: 'gap', t: startT, endT, durationS: endT - startT, reason });
     return this.out ?? NO_EVENTS;
   }
 
@@ -418,9 +576,9 @@ class Engine implements RunEngine {
       sourceWh: energy.sourceWhOrNull(),
       efficiency: energy.efficiency(),
       socPct: this.soc.pct(energy.ah),
-      etaS: eta[0],
-      etaCcS: eta[1],
-      etaCvS: eta[2],
+      etaS: seconds(eta[0]),
+      etaCcS: seconds(eta[1]),
+      etaCvS: seconds(eta[2]),
       internalResistanceOhm: ir === ir ? ir : null,
       mpptErrorFraction: this.lim.inputSetpointV === null ? null : this.mppt.fraction(),
     };
@@ -453,7 +611,7 @@ class Engine implements RunEngine {
     return cvS === cvS ? [ccS + cvS, ccS, cvS] : [ccS, ccS, null];
   }
 
-  summary(): Omit<RunSummary, 'lines' | 'rejected'> {
+  summary(): Omit<RunSummary, 'lines' | 'rejected' | 'timeGlitches' | 'clockResets'> {
     const phaseS: Partial<Record<Phase, number>> = {};
     for (let i = 0; i < PHASES.length; i++) if (this.phaseS[i] > 0) phaseS[PHASES[i]] = this.phaseS[i];
     return { durationS: this.lastT - this.firstT, ah: this.energy.ah, wh: this.energy.wh, phaseS };

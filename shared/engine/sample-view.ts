@@ -18,6 +18,8 @@ export class SampleView {
   vPerCell = NaN;
   ibatA = NaN;
   tempC = NaN;
+  /** Raw thermistor reading when the line carried `ntc`. */
+  ntcRaw = NaN;
   vinV = NaN;
   iinA = NaN;
   chg = PIN_UNKNOWN;
@@ -32,6 +34,7 @@ export class SampleView {
     this.vPerCell = this.vbatV / this.cells;
     this.ibatA = s.ibatA ?? NaN;
     this.tempC = s.tempC ?? NaN;
+    this.ntcRaw = s.ntcRaw ?? NaN;
     this.vinV = s.vinV ?? NaN;
     this.iinA = s.iinA ?? NaN;
     this.chg = s.chg === undefined ? PIN_UNKNOWN : s.chg ? 1 : 0;

@@ -2,6 +2,7 @@
 
 /** A moment or elapsed time on the run clock as h:mm:ss (negative values read as 0). */
 export function formatRunClock(tS: number): string {
+  if (!Number.isFinite(tS)) return '?:??:??';
   const total = Math.max(0, Math.round(tS));
   const h = Math.floor(total / 3600);
   const m = Math.floor((total % 3600) / 60);
@@ -11,6 +12,7 @@ export function formatRunClock(tS: number): string {
 
 /** A duration a person reads at a glance: `42 s`, `23 min`, `3 h 05 min`. */
 export function formatSpan(s: number): string {
+  if (!Number.isFinite(s)) return 'unknown time';
   if (s < 90) return `${Math.round(s)} s`;
   const min = Math.round(s / 60);
   if (min < 90) return `${min} min`;

@@ -14,7 +14,9 @@ export type AlarmCode =
   | 'input-low'
   | 'silence'
   | 'fault-pin'
-  | 'reverse-current';
+  | 'reverse-current'
+  | 'sensor-fault'
+  | 'contact';
 export const ALARM_CODES: readonly AlarmCode[] = [
   'overtemp',
   'undertemp',
@@ -26,6 +28,8 @@ export const ALARM_CODES: readonly AlarmCode[] = [
   'silence',
   'fault-pin',
   'reverse-current',
+  'sensor-fault',
+  'contact',
 ];
 
 export type AlarmLevel = 'warn' | 'critical';
@@ -52,11 +56,16 @@ export interface AlarmClearEvent {
   t: number;
   code: AlarmCode;
 }
-/** Telemetry stopped arriving (unplug, silence) and, when `endT` is set, came back. */
+/**
+ * Telemetry stopped arriving (unplug, or no accepted line for longer than `silenceS`) and, when
+ * `endT` is set, came back after `durationS`. Nothing is integrated across a gap.
+ */
 export interface GapEvent {
   type: 'gap';
   t: number;
   endT: number | null;
+  /** endT − t once the gap has ended. */
+  durationS?: number;
   reason: string;
 }
 export type EngineEvent = PhaseEvent | AlarmEvent | AlarmClearEvent | GapEvent;
@@ -99,6 +108,10 @@ export interface RunSummary {
   phaseS: Partial<Record<Phase, number>>;
   lines: number;
   rejected: number;
+  /** Lines whose device time was out of order or corrupt: placed with no elapsed time (absent = none). */
+  timeGlitches?: number;
+  /** Device reboots the following lines confirmed, bridged (absent = none). */
+  clockResets?: number;
 }
 
 /** One object per run: the same for live ports, the simulator and replays. */
@@ -112,6 +125,13 @@ export interface RunEngine {
    * it lasts. The engine records it once and does not also call it `stall` or `silence`.
    */
   gap(startT: number, endT: number | null, reason: string): EngineEvent[];
+  /**
+   * A line whose temperature was impossible was rejected before reaching the engine: the
+   * temperature protection is blind at run time t (raises `sensor-fault` while charging).
+   */
+  blindSensor(t: number, detail: string): EngineEvent[];
+  /** The typical interval between samples (from the time base), for neighbour comparisons. */
+  setTypicalInterval(intervalS: number): void;
   state(): RunState;
-  summary(): Omit<RunSummary, 'lines' | 'rejected'>;
+  summary(): Omit<RunSummary, 'lines' | 'rejected' | 'timeGlitches' | 'clockResets'>;
 }

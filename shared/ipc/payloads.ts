@@ -34,9 +34,17 @@ export interface StationSnapshot {
   lines: number;
   rejected: number;
   recording: { ok: boolean; problem: string | null };
+  /** The board under test: id, operator, firmware version, burn-in batch (null when unknown). */
+  board?: {
+    boardId: string | null;
+    operator: string | null;
+    firmware: string | null;
+    batchId: string | null;
+  };
 }
 
-export type RunEndReason = 'completed' | 'stopped' | 'interrupted' | 'profile-changed';
+export type RunEndReason =
+  'completed' | 'stopped' | 'interrupted' | 'profile-changed' | 'board-changed' | 'batch-started';
 
 export interface RunRow {
   id: number;
@@ -53,6 +61,13 @@ export interface RunRow {
   wh: number;
   lines: number;
   rejected: number;
+  /** The board under test, who ran it, its firmware, its burn-in batch (null when unknown). */
+  boardId?: string | null;
+  operator?: string | null;
+  firmware?: string | null;
+  batchId?: string | null;
+  /** The checks' verdict, when the run was judged. */
+  verdict?: 'pass' | 'fail' | 'incomplete' | null;
 }
 
 /** Canonical sample columns that overview queries can bucket. */

@@ -29,4 +29,6 @@ export type PushEnvelope =
   | { push: 'lines'; data: { stationId: string; lines: unknown[] } }
   | { push: 'problem'; data: { stationId: string | null; message: string; level: 'warn' | 'critical' } }
   | { push: 'alarm-ack'; data: { stationId: string; code: string; t: number } }
-  | { push: 'command'; data: AppCommand };
+  | { push: 'command'; data: AppCommand }
+  /** A station's board checks, recomputed as its run goes on (CheckReport of shared/engine/checks). */
+  | { push: 'checks'; data: { stationId: string; runId: number | null; report: unknown } };

@@ -1,7 +1,20 @@
 /** Runtime-validated request schemas (zod). Anything not matching is refused with the reason. */
 import { z } from 'zod';
+import { connectableSourceSchema, stationSchema } from '../sources/schemas';
 
+/**
+ * A station that exists: besides the ids a person gives, a remote station is
+ * `<bench>/<station>` and a recorded port may carry its path (`serial:/dev/ttyUSB0`).
+ */
 const stationId = z
+  .string()
+  .min(1)
+  .max(130)
+  .regex(/^[A-Za-z0-9._:/-]+$/, 'letters, digits, . _ - : / only')
+  // Ids end up in file names and topic paths: no `..` segment may climb out of them.
+  .refine((id) => !id.split('/').includes('..'), 'no ".." segment');
+/** The id of a new station added from the Connect view. */
+const newStationId = z
   .string()
   .min(1)
   .max(64)
@@ -12,42 +25,9 @@ const seriesField = z.enum(['vbatV', 'ibatA', 'tempC', 'vinV', 'iinA']);
 /** Profile JSON is validated by the chemistry layer, which names the bad key. */
 const profileJson = z.unknown();
 
-const serialSource = z
-  .object({
-    kind: z.literal('serial'),
-    path: z.string().min(1).max(512),
-    baudRate: z.number().int().min(50).max(4_000_000),
-    dataBits: z.union([z.literal(5), z.literal(6), z.literal(7), z.literal(8)]).optional(),
-    parity: z.enum(['none', 'even', 'odd']).optional(),
-    stopBits: z.union([z.literal(1), z.literal(2)]).optional(),
-    match: z
-      .object({
-        serialNumber: z.string().max(128).optional(),
-        vendorId: z.string().max(16).optional(),
-        productId: z.string().max(16).optional(),
-      })
-      .strict()
-      .optional(),
-  })
-  .strict();
-
-const simulatorSource = z
-  .object({
-    kind: z.literal('simulator'),
-    scenario: z.string().min(1).max(64),
-    speedup: z.number().positive().max(10_000).optional(),
-    shape: z.enum(['kv', 'csv', 'json']).optional(),
-    sampleIntervalS: z.number().positive().max(3600).optional(),
-  })
-  .strict();
-
-export const stationConfigSchema = z
-  .object({
-    id: stationId,
-    label: z.string().max(120).optional(),
-    source: z.discriminatedUnion('kind', [serialSource, simulatorSource]),
-    profile: profileJson,
-  })
+/** A station as the Connect view asks for it: the kinds a person can pick (shared/sources). */
+export const stationConfigSchema = stationSchema
+  .extend({ id: newStationId, source: connectableSourceSchema })
   .strict();
 
 const window = { fromT: z.number().min(0), toT: z.number().min(0) };
@@ -63,6 +43,29 @@ export const requestSchemas = {
   'stations.history': z.object({ stationId, fromT: z.number().min(0).optional() }).strict(),
   'stations.ackAlarm': z.object({ stationId, code: z.string().max(64), t: z.number() }).strict(),
   'stations.diagnose': z.object({ stationId, atT: z.number().min(0).optional() }).strict(),
+  /** The board under test: typed or scanned id (a new id starts a new run), operator, batch. */
+  'stations.setBoard': z
+    .object({
+      stationId,
+      boardId: z
+        .string()
+        .regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces')
+        .nullable()
+        .optional(),
+      operator: z.string().max(120).nullable().optional(),
+      batchId: z
+        .string()
+        .regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces')
+        .nullable()
+        .optional(),
+    })
+    .strict(),
+  /** Start a burn-in batch: every live station begins a new run of this batch. */
+  'stations.startBatch': z
+    .object({ batchId: z.string().regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces') })
+    .strict(),
+  /** The station's latest board checks (also pushed as `checks`). */
+  'stations.checks': z.object({ stationId }).strict(),
   'ports.list': z.object({}).strict(),
   'scenarios.list': z.object({}).strict(),
   'profile.validate': z.object({ profile: profileJson }).strict(),
@@ -94,6 +97,8 @@ export const requestSchemas = {
     .strict(),
   'runs.delete': z.object({ runId }).strict(),
   'runs.diagnose': z.object({ runId, atT: z.number().min(0).optional() }).strict(),
+  /** A recorded run judged against its profile's expect ranges (the `taperline check` JSON). */
+  'runs.checks': z.object({ runId }).strict(),
   /** CSV export: Electron asks where to save; the web mode answers with a download URL. */
   'runs.exportCsv': z.object({ runId }).strict(),
   /** Run report (self-contained HTML): saved (Electron) or a download URL (web). */

@@ -1,11 +1,12 @@
 /**
- * NMEA 0183 style line checksum (docs/telemetry.md): `*HH` at the end of a line is the
- * 8-bit XOR of every character before the `*`, written as two hex digits. As in NMEA, a
- * leading `$` or `!` start delimiter is not part of the XOR.
+ * NMEA 0183 style line checksum: `*HH` at the end of a line is the 8-bit XOR of every
+ * byte before the `*`, written as two hex digits. As in NMEA, a leading `$` or `!` start
+ * delimiter is not part of the XOR.
  *
- * Telemetry lines are ASCII in practice; for a non-ASCII character the XOR uses its
- * UTF-16 code unit masked to 8 bits, so the function is total (never throws) but such
- * lines only verify against a device that does the same.
+ * The bytes are the line's UTF-8 bytes, as the device sent them: a line carrying `°C`
+ * (C2 B0 43) or `Ω` (CE A9) is summed byte by byte, not by its UTF-16 code units. The
+ * string is encoded on the fly (no buffer); a lone surrogate counts as U+FFFD, as
+ * TextEncoder would encode it.
  */
 
 const STAR = 42; // '*'
@@ -18,12 +19,34 @@ export interface SplitLine {
   checksum: ChecksumStatus;
 }
 
-/** XOR of the characters of `body`, skipping one leading `$` or `!`. */
+/** XOR of the UTF-8 bytes of `body`, skipping one leading `$` or `!`. */
 export function nmeaChecksum(body: string): number {
   let sum = 0;
   const first = body.charCodeAt(0);
   const start = first === 36 /* $ */ || first === 33 /* ! */ ? 1 : 0;
-  for (let i = start; i < body.length; i++) sum ^= body.charCodeAt(i);
+  const n = body.length;
+  for (let i = start; i < n; i++) {
+    let c = body.charCodeAt(i);
+    if (c < 0x80) sum ^= c;
+    else if (c < 0x800) sum ^= (0xc0 | (c >> 6)) ^ (0x80 | (c & 0x3f));
+    else {
+      if (c >= 0xd800 && c <= 0xdbff && i + 1 < n) {
+        const low = body.charCodeAt(i + 1);
+        if (low >= 0xdc00 && low <= 0xdfff) {
+          const cp = 0x10000 + ((c - 0xd800) << 10) + (low - 0xdc00);
+          sum ^=
+            (0xf0 | (cp >> 18)) ^
+            (0x80 | ((cp >> 12) & 0x3f)) ^
+            (0x80 | ((cp >> 6) & 0x3f)) ^
+            (0x80 | (cp & 0x3f));
+          i++;
+          continue;
+        }
+      }
+      if (c >= 0xd800 && c <= 0xdfff) c = 0xfffd; // a lone surrogate
+      sum ^= (0xe0 | (c >> 12)) ^ (0x80 | ((c >> 6) & 0x3f)) ^ (0x80 | (c & 0x3f));
+    }
+  }
   return sum & 0xff;
 }
 

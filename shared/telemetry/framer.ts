@@ -20,6 +20,12 @@ const CR = 13;
 
 export type LineHandler = (text: string, tooLong: boolean) => void;
 
+/**
+ * A line as bytes, bytes[from, to), without its newline (and `\r`). The array is the
+ * framer's or the chunk's: read it during the call, do not keep it.
+ */
+export type ByteLineHandler = (bytes: Uint8Array, from: number, to: number, tooLong: boolean) => void;
+
 export class LineFramer {
   private readonly decoder = new TextDecoder('utf-8');
   private readonly maxBytes: number;
@@ -30,12 +36,25 @@ export class LineFramer {
   private dropping = false;
   private linesFramed = 0;
 
+  /** Set in byte mode: lines are handed over as bytes, never decoded here. */
+  private onBytes: ByteLineHandler | null = null;
+
   constructor(
     private readonly onLine: LineHandler,
     maxBytes: number = MAX_LINE_BYTES,
   ) {
     this.maxBytes = Number.isInteger(maxBytes) && maxBytes > 0 ? maxBytes : MAX_LINE_BYTES;
     this.pending = new Uint8Array(this.maxBytes + 1);
+  }
+
+  /**
+   * A framer that hands each line over as bytes (the replay fast path: the parser reads
+   * the usual ASCII line without a string). Same cutting, `\r` and too-long rules.
+   */
+  static ofBytes(onBytes: ByteLineHandler, maxBytes: number = MAX_LINE_BYTES): LineFramer {
+    const framer = new LineFramer(() => {}, maxBytes);
+    framer.onBytes = onBytes;
+    return framer;
   }
 
   /** Lines delivered so far (including cut ones). */
@@ -127,6 +146,22 @@ export class LineFramer {
 
   /** Lines in chunk[from, lastNl], where chunk[lastNl] is a newline. */
   private emitWholeLines(chunk: Uint8Array, from: number, lastNl: number): void {
+    const onBytes = this.onBytes;
+    if (onBytes !== null) {
+      let start = from;
+      while (start <= lastNl) {
+        const nl = chunk.indexOf(LF, start);
+        let stop = nl;
+        if (stop > start && chunk[stop - 1] === CR) stop--;
+        if (stop - start > this.maxBytes) this.emitCut(chunk, start);
+        else {
+          this.linesFramed++;
+          onBytes(chunk, start, stop, false);
+        }
+        start = nl + 1;
+      }
+      return;
+    }
     const text = this.decoder.decode(chunk.subarray(from, lastNl + 1));
     if (text.length === lastNl + 1 - from) {
       // One character per byte: cut lines from the decoded string.
@@ -160,7 +195,8 @@ export class LineFramer {
 
   private emitBytes(bytes: Uint8Array, from: number, to: number): void {
     this.linesFramed++;
-    this.onLine(from === to ? '' : this.decoder.decode(bytes.subarray(from, to)), false);
+    if (this.onBytes !== null) this.onBytes(bytes, from, to, false);
+    else this.onLine(from === to ? '' : this.decoder.decode(bytes.subarray(from, to)), false);
   }
 
   /** Delivers the first maxBytes bytes from `from`, backed off to a character boundary. */
@@ -170,7 +206,8 @@ export class LineFramer {
     for (let k = 0; k < 3 && to > from && (bytes[to] & 0xc0) === 0x80; k++) to--;
     if ((bytes[to] & 0xc0) === 0x80) to = from + this.maxBytes;
     this.linesFramed++;
-    this.onLine(this.decoder.decode(bytes.subarray(from, to)), true);
+    if (this.onBytes !== null) this.onBytes(bytes, from, to, true);
+    else this.onLine(this.decoder.decode(bytes.subarray(from, to)), true);
   }
 }
 

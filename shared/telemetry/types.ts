@@ -41,7 +41,8 @@ export type RejectReason =
   | 'bad-value' // a canonical field whose value is not a number (or 0/1, or a source name)
   | 'bad-unit' // a unit suffix that does not fit the field (e.g. `ibat=3V`)
   | 'csv-width' // CSV row whose cell count differs from the header
-  | 'csv-no-header'; // bare comma-separated numbers before any header line
+  | 'csv-no-header' // bare comma-separated numbers before any header line
+  | 'implausible'; // a physically impossible value, or one not finite after unit conversion
 
 /** How one device key maps onto a canonical field. */
 export interface FieldMapping {

@@ -110,7 +110,7 @@ export function quantitiesOf(unit: string): Quantity[] {
 
 export type ValueParse =
   | { ok: true; value: number; quantity: Quantity | null }
-  | { ok: false; reason: 'bad-value' | 'bad-unit'; detail: string };
+  | { ok: false; reason: 'bad-value' | 'bad-unit' | 'implausible'; detail: string };
 
 // A JS number literal (decimal, optional exponent) followed by an optional unit.
 const NUMBER_WITH_UNIT = /^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(\S.*?)?\s*$/;
@@ -162,6 +162,45 @@ export const IDENTITY_CONVERSION: KeyConversion = {
 };
 
 /**
+ * The one unit conversion of the telemetry layer: a number read with a unit (`factor`,
+ * `offset` into the base unit), then the key's calibration. Every line shape and the
+ * extra channels go through here.
+ */
+export function toBase(value: number, factor: number, offset: number, conv: KeyConversion): number {
+  return (value * factor + offset) * conv.scale + conv.offset;
+}
+
+/** A value with no suffix: in the key's profile unit (or the base unit), then calibrated. */
+export function unsuffixedToBase(value: number, conv: KeyConversion): number {
+  return toBase(value, conv.unitFactor, conv.unitOffset, conv);
+}
+
+/** Why a converted value is refused as `implausible`: it left the range of numbers. */
+export function notFiniteDetail(key: string, text: string, baseUnit: string): string {
+  return (
+    `${key}=${clip(text)}: not a finite number after unit conversion (beyond ±1.8e308 ${baseUnit}); ` +
+    "the line is kept in the raw record, check the device's number format"
+  );
+}
+
+/** Base unit of a canonical field, for messages. */
+export function fieldBaseUnit(field: CanonicalField): string {
+  const quantities = FIELD_QUANTITIES[field];
+  return quantities === undefined ? '' : quantities.map((q) => BASE_UNIT[q]).join(' or ');
+}
+
+// A number written with a decimal comma, as some locales print it.
+const DECIMAL_COMMA = /^\s*[-+]?\d+,\d+\s*$/;
+
+/** The message for a value that is not a number, naming a decimal comma when that is the cause. */
+export function notANumberDetail(key: string, text: string): string {
+  if (DECIMAL_COMMA.test(text)) {
+    return `${key}=${clip(text)}: a decimal comma; write the number with a decimal point (${key}=${clip(text.trim().replace(',', '.'))})`;
+  }
+  return `${key}=${clip(text)}: not a number`;
+}
+
+/**
  * Precomputes the conversion for one mapped key. Returns an error text when the profile's
  * unit does not fit the field (a profile mistake, reported by whoever validates profiles).
  */
@@ -201,29 +240,39 @@ export function parseFieldValue(
   key: string,
   conv: KeyConversion = IDENTITY_CONVERSION,
 ): ValueParse {
+  let value: number;
+  let quantity: Quantity | null;
   const plain = parsePlainNumber(text);
   if (!Number.isNaN(plain)) {
-    const base = plain * conv.unitFactor + conv.unitOffset;
-    return { ok: true, value: base * conv.scale + conv.offset, quantity: conv.unitQuantity };
+    value = unsuffixedToBase(plain, conv);
+    quantity = conv.unitQuantity;
+  } else {
+    const split = splitNumberUnit(text);
+    if (split === null || (split.unit !== '' && !UNIT_WORD.test(split.unit)) || Number.isNaN(split.number)) {
+      return { ok: false, reason: 'bad-value', detail: notANumberDetail(key, text) };
+    }
+    const quantities = FIELD_QUANTITIES[field] ?? [];
+    const match = split.unit === '' ? null : findUnit(split.unit, quantities);
+    if (match === null && split.unit !== '') {
+      const other = quantitiesOf(split.unit);
+      const what = other.length > 0 ? `a ${other[0]} unit` : 'not a known unit';
+      const expected = quantities.map((q) => BASE_UNIT[q]).join(' or ');
+      return {
+        ok: false,
+        reason: 'bad-unit',
+        detail: `${key}=${clip(text)}: "${split.unit}" is ${what}; ${key} is in ${expected}`,
+      };
+    }
+    // A literal beyond the range of numbers (`1e400`) reads as Infinity: refused below.
+    value =
+      match === null
+        ? unsuffixedToBase(split.number, conv)
+        : toBase(split.number, match.factor, match.offset, conv);
+    quantity = match === null ? conv.unitQuantity : match.quantity;
   }
-  const split = splitNumberUnit(text);
-  if (split === null || !Number.isFinite(split.number) || !UNIT_WORD.test(split.unit)) {
-    return { ok: false, reason: 'bad-value', detail: `${key}=${clip(text)}: not a number` };
-  }
-  const quantities = FIELD_QUANTITIES[field] ?? [];
-  const match = findUnit(split.unit, quantities);
-  if (match === null) {
-    const other = quantitiesOf(split.unit);
-    const what = other.length > 0 ? `a ${other[0]} unit` : 'not a known unit';
-    const expected = quantities.map((q) => BASE_UNIT[q]).join(' or ');
-    return {
-      ok: false,
-      reason: 'bad-unit',
-      detail: `${key}=${clip(text)}: "${split.unit}" is ${what}; ${key} is in ${expected}`,
-    };
-  }
-  const base = split.number * match.factor + match.offset;
-  return { ok: true, value: base * conv.scale + conv.offset, quantity: match.quantity };
+  if (!Number.isFinite(value))
+    return { ok: false, reason: 'implausible', detail: notFiniteDetail(key, text, fieldBaseUnit(field)) };
+  return { ok: true, value, quantity };
 }
 
 /**
@@ -237,7 +286,9 @@ export function parseExtraValue(text: string): number | string {
   if (split === null || split.unit === '' || !Number.isFinite(split.number)) return text;
   const match = findUnit(split.unit, EXTRA_ORDER);
   if (match === null) return text;
-  return split.number * match.factor + match.offset;
+  const value = split.number * match.factor + match.offset;
+  // Out of the range of numbers: the text is kept as written rather than an Infinity.
+  return Number.isFinite(value) ? value : text;
 }
 
 /** Shortens a value for an error message. */

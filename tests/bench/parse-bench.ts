@@ -99,9 +99,28 @@ function benchFramerAndParser(): void {
   if (samples !== N) console.log(`  (only ${samples} samples: check the input)`);
 }
 
+/** The replay path: lines handed over as bytes and read without a string when they are plain ASCII. */
+function benchByteFramerAndParser(): void {
+  const bytes = encoder.encode(text.kv.join('\n') + '\n');
+  const parser = createLineParser({});
+  let samples = 0;
+  const framer = LineFramer.ofBytes((b, from, to, tooLong) => {
+    if (parser.parseBytes(b, from, to, 0, tooLong).kind === 'sample') samples++;
+  });
+  const warm = encoder.encode(text.kv.slice(0, 50_000).join('\n') + '\n');
+  for (let pos = 0; pos < warm.length; pos += 65536) framer.push(warm.subarray(pos, pos + 65536));
+  samples = 0;
+  measure('framer + parser as bytes (replay)', N, () => {
+    for (let pos = 0; pos < bytes.length; pos += 65536) framer.push(bytes.subarray(pos, pos + 65536));
+    framer.end();
+  });
+  if (samples !== N) console.log(`  (only ${samples} samples: check the input)`);
+}
+
 console.log(`example line (${text.kv[0].length} chars): ${text.kv[0]}`);
 benchParser('key=value, 8 fields', asReceived(text.kv));
 benchParser('CSV, 8 cells', asReceived(text.csv), csvHeaderLine(Object.keys(makeValues(0))));
 benchParser('JSON, 8 keys', asReceived(text.json));
 benchFramer();
 benchFramerAndParser();
+benchByteFramerAndParser();

@@ -6,7 +6,16 @@
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 
-const BENCHES = ['parse-bench.ts', 'engine-bench.ts', 'replay-bench.ts', 'record-bench.ts', 'chart-bench.ts'];
+const BENCHES = [
+  'parse-bench.ts',
+  'engine-bench.ts',
+  'replay-bench.ts',
+  'record-bench.ts',
+  'chart-bench.ts',
+  'firmware-size-bench.ts',
+  'unplug-bench.ts',
+  'checks-bench.ts',
+];
 const extra = process.argv.slice(2);
 let failed = 0;
 for (const bench of BENCHES) {

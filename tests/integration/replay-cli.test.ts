@@ -47,7 +47,17 @@ test('--events prints one JSON event a line and the summary last (docs/cli.md)',
   const records = ndjson(r.stdout);
   const summary = records.at(-1)!;
   assert.equal(summary.type, 'summary');
-  assert.deepEqual(Object.keys(summary), ['type', 'durationS', 'ah', 'wh', 'phaseS', 'lines', 'rejected']);
+  assert.deepEqual(Object.keys(summary), [
+    'type',
+    'durationS',
+    'ah',
+    'wh',
+    'phaseS',
+    'lines',
+    'rejected',
+    'timeGlitches',
+    'clockResets',
+  ]);
   assert.ok(records.slice(0, -1).every((e) => ['phase', 'alarm', 'alarm-clear', 'gap'].includes(e.type)));
   const phases = records.filter((e) => e.type === 'phase').map((e) => e.phase);
   assert.equal(phases[0], 'precondition');

@@ -183,5 +183,5 @@ test('every scenario reads the same in csv and json shapes', () => {
       );
     }
   }
-  assert.equal(SCENARIO_NAMES.length, 11);
+  assert.equal(SCENARIO_NAMES.length, 16);
 });

@@ -4,7 +4,7 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { mkdirSync, mkdtempSync, realpathSync, rmSync, symlinkSync, unlinkSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readFileSync, realpathSync, rmSync, symlinkSync, unlinkSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { DisconnectedError, type SerialPortStream } from '@serialport/stream';
@@ -110,6 +110,108 @@ test('a 10 MB burst without newline becomes one cut line of 4096 bytes, then the
     // Bounded memory: the 10 MB were never held at once by the reader (the writer's own buffer aside).
     assert.ok(rssPeak - rssBefore < 40 * 1024 * 1024, `rss grew by ${rssPeak - rssBefore} bytes`);
     await closePort(device);
+  } finally {
+    await source.stop();
+    await pair.stop();
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('a line of exactly 4096 bytes plus \\r\\n is whole; 4097 bytes is cut (the shared framer on a pty)', async () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-serial-'));
+  const pair = ptyPair(join(dir, 'device'), join(dir, 'host'));
+  await pair.start();
+  const source = createSerialSource({ kind: 'serial', path: pair.host, baudRate: 115200 });
+  const got = collect(source);
+  try {
+    source.start();
+    await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
+    const device = await openDevice(pair.device);
+    // docs/telemetry.md: at most 4096 bytes per line, not counting the newline and one \r before it.
+    await write(device, 'B'.repeat(4096) + '\r\n' + 'C'.repeat(4097) + '\nvbat=8.2\n');
+    await until(() => got.lines.length >= 3, 5000, 'three lines');
+    assert.deepEqual(
+      got.lines.map((l) => [l.text, l.tooLong]),
+      [
+        ['B'.repeat(4096), false],
+        ['C'.repeat(4096), true],
+        ['vbat=8.2', false],
+      ],
+    );
+    await closePort(device);
+  } finally {
+    await source.stop();
+    await pair.stop();
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('a link re-pointed at another pty while the open one is silent: lost, then the new device is read', async () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-serial-'));
+  const first = ptyPair(join(dir, 'dev0'), join(dir, 'host0'));
+  const second = ptyPair(join(dir, 'dev1'), join(dir, 'host1'));
+  await first.start();
+  await second.start();
+  const link = join(dir, 'charger');
+  symlinkSync(realpathSync(first.host), link);
+  const source = createSerialSource(
+    { kind: 'serial', path: link, baudRate: 115200 },
+    { list: async () => [] },
+  );
+  const got = collect(source);
+  try {
+    source.start();
+    await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
+    // The first pair stays alive (no hang-up to notice): only the name now leads elsewhere.
+    unlinkSync(link);
+    symlinkSync(realpathSync(second.host), link);
+    await until(() => got.statuses.filter((s) => s.state === 'open').length === 2, 5000, 'open again');
+    assert.match(got.statuses.find((s) => s.state === 'lost')?.detail ?? '', /now names another device/);
+    const device = await openDevice(second.device);
+    await write(device, 'vbat=11.9\n');
+    await until(() => got.lines.length === 1, 5000, 'a line from the new device');
+    assert.equal(got.lines[0].text, 'vbat=11.9');
+    await closePort(device);
+  } finally {
+    await source.stop();
+    await first.stop();
+    await second.stop();
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
+test('a killed far end is noticed by the hang-up, without spinning, and a stale pty link is not opened', async () => {
+  const dir = mkdtempSync(join(tmpdir(), 'taperline-serial-'));
+  const pair = ptyPair(join(dir, 'device'), join(dir, 'host'));
+  await pair.start();
+  const source = createSerialSource(
+    { kind: 'serial', path: pair.host, baudRate: 115200 },
+    { list: async () => [] },
+  );
+  const got = collect(source);
+  // utime + stime of this process (proc(5) fields 14 and 15, in USER_HZ = 100 ticks a second).
+  const cpuS = () => {
+    const stat = readFileSync('/proc/self/stat', 'utf8');
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return (Number(f[11]) + Number(f[12])) / 100;
+  };
+  try {
+    source.start();
+    await until(() => got.statuses.some((s) => s.state === 'open'), 5000, 'open');
+    // SIGKILL: socat cannot remove its links; they dangle, and may later lead to a re-used pty number.
+    await pair.unplug();
+    await until(() => got.statuses.some((s) => s.state === 'lost'), 5000, 'lost');
+    const c0 = cpuS();
+    const w0 = Date.now();
+    // Another pair takes the freed pty numbers; the dangling links were made before those ptys.
+    const other = ptyPair(join(dir, 'other-dev'), join(dir, 'other-host'));
+    await other.start();
+    await new Promise((r) => setTimeout(r, 1000));
+    const cpuPct = (100 * (cpuS() - c0)) / ((Date.now() - w0) / 1000);
+    assert.equal(got.statuses.filter((s) => s.state === 'open').length, 1, 'a stale link was opened');
+    // A zero-byte read loop would keep this process near 100 % of a core.
+    assert.ok(cpuPct < 50, `CPU while the device was away: ${cpuPct.toFixed(1)} %`);
+    await other.stop();
   } finally {
     await source.stop();
     await pair.stop();

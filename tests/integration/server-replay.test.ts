@@ -16,6 +16,7 @@ import type { FeedLine } from '@shared/ipc/payloads';
 import type { EngineEvent } from '@shared/engine/types';
 import type { SampleBatch } from '@shared/ipc/pushes';
 import { startBackend, type Backend } from '../../main/app/backend';
+import { stationsFromOptions } from '../../main/app/station-options';
 import { startServer, type RunningServer } from '../../main/server';
 import { realLibraries } from '../../main/app/libraries';
 import { ApiClient, openPtyPair, rawGet, TRAIL_CAMERA_PROFILE, type PtyPair } from './server-harness';
@@ -68,7 +69,7 @@ before(async () => {
   writeFileSync(profilePath, JSON.stringify(TRAIL_CAMERA_PROFILE));
   backend = await startBackend({
     dbPath,
-    serial: { path: pty.stationPath, baudRate: 115200, profilePath },
+    stations: stationsFromOptions({ ports: [pty.stationPath], profilePath, simulate: [] }),
   });
   server = await startServer({
     port: 0,

@@ -125,11 +125,6 @@ test('each bad value names its key and says why, with what was given', () => {
       'terminationA',
       /below chargeCurrentA 0\.2 A/,
     ],
-    [
-      { ...base, capacityAh: 2.5, chargeCurrentA: 0.2 },
-      'terminationA',
-      /the default is 0\.25 A, set terminationA/,
-    ],
     [{ ...base, chargeCurrentA: 1, preconditionA: 2 }, 'preconditionA', /must not exceed chargeCurrentA/],
     [
       { ...base, preconditionVPerCell: 4.3 },
@@ -224,4 +219,83 @@ test('the caution defers to the datasheet and local codes and warns of fire', ()
   assert.match(PROFILE_CAUTION, /local/);
   assert.match(PROFILE_CAUTION, /unattended/);
   assert.match(PROFILE_CAUTION, /lead-acid/);
+});
+
+/** refused() for inputs too deep to print in an assertion message. */
+function refusedQuiet(input: unknown): { key: string; error: string } {
+  const r = parseProfile(input);
+  if (r.ok) throw new Error('expected a refusal');
+  return r;
+}
+
+test('a profile nested 5,000 levels deep is refused by the key where it nests, never a stack overflow', () => {
+  let deepObject: unknown = 1;
+  let deepArray: unknown = 1;
+  for (let i = 0; i < 5000; i++) {
+    deepObject = { a: deepObject };
+    deepArray = [deepArray];
+  }
+  const cases: [unknown, string][] = [
+    [deepObject, 'a.a.a.a'],
+    [{ chemistry: 'li-ion', cells: 1, tempWindowC: deepArray }, 'tempWindowC.0.0.0'],
+    [{ chemistry: 'li-ion', cells: 1, fields: { vbat: deepObject } }, 'fields.vbat.a.a'],
+    [{ chemistry: 'li-ion', cells: 1, thermistor: deepObject }, 'thermistor.a.a.a'],
+  ];
+  for (const [input, key] of cases) {
+    const r = refusedQuiet(input);
+    assert.equal(r.key, key);
+    assert.match(r.error, /nested deeper than any profile key/);
+  }
+  // A whole file that is one deep array: "must be an object", its value described, not printed.
+  const top = refusedQuiet(deepArray);
+  assert.equal(top.key, 'profile');
+  assert.match(top.error, /must be an object \(got a nested array\)/);
+});
+
+test('a value so large that derived limits would overflow is refused by its own key', () => {
+  const base = { chemistry: 'li-ion', cells: 3 };
+  for (const key of [
+    'capacityAh',
+    'chargeCurrentA',
+    'terminationA',
+    'timerMin',
+    'regulationVPerCell',
+    'silenceS',
+  ]) {
+    const r = refusedQuiet({ ...base, [key]: 1e308 });
+    assert.equal(r.key, key, r.error);
+    assert.match(r.error, /must be at most/);
+  }
+});
+
+test('Steinhart-Hart with a=b=c=0, a curve that is no NTC, and a zero field scale are refused by key', () => {
+  const base = { chemistry: 'li-ion', cells: 1 };
+  const zero = refusedQuiet({ ...base, thermistor: { model: 'steinhart-hart', a: 0, b: 0, c: 0 } });
+  assert.equal(zero.key, 'thermistor.a');
+  assert.match(zero.error, /all 0/);
+  // b negative: resistance would rise with temperature (a PTC), not the NTC the model is for.
+  const ptc = refusedQuiet({ ...base, thermistor: { model: 'steinhart-hart', a: 1e-3, b: -2e-4, c: 0 } });
+  assert.equal(ptc.key, 'thermistor.b');
+  const scale = refusedQuiet({ ...base, fields: { ntc: { key: 'ntc', scale: 0 } } });
+  assert.equal(scale.key, 'fields.ntc.scale');
+  assert.match(scale.error, /must not be 0/);
+  // Coefficients of a common 10 kΩ NTC (a = 1.129e-3, b = 2.341e-4, c = 8.775e-8, from memory) are accepted.
+  const ok = parseProfile({
+    ...base,
+    thermistor: { model: 'steinhart-hart', a: 1.129e-3, b: 2.341e-4, c: 8.775e-8 },
+  });
+  assert.ok(ok.ok, ok.ok ? '' : ok.error);
+});
+
+test('a small charger on a big pack: the default termination is capped below the charge current', () => {
+  // 100 Ah at C/10 would terminate at 10 A, above the 0.5 A the charger gives: capped at half of it.
+  const r = parseProfile({ chemistry: 'li-ion', cells: 4, capacityAh: 100, chargeCurrentA: 0.5 });
+  assert.ok(r.ok, r.ok ? '' : r.error);
+  if (r.ok) {
+    assert.equal(r.profile.terminationA, 0.25);
+    assert.ok(r.profile.preconditionA <= r.profile.chargeCurrentA);
+  }
+  // At the usual charge current the C-rate default is unchanged (C/10 of 2.5 Ah).
+  const usual = parseProfile({ chemistry: 'li-ion', cells: 3, capacityAh: 2.5 });
+  assert.ok(usual.ok && usual.profile.terminationA === 0.25);
 });

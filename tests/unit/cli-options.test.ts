@@ -7,7 +7,9 @@ import assert from 'node:assert/strict';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { BackendStartError, startBackend } from '../../main/app/backend';
+import { startBackend } from '../../main/app/backend';
+import { InputFileError } from '../../main/app/input-file-error';
+import { stationsFromOptions } from '../../main/app/station-options';
 import { UsageError } from '../../main/cli/errors';
 import {
   nonNegativeNumber,
@@ -121,23 +123,23 @@ test('readValidatedProfileJson returns the JSON as written and names the file, o
   refuses(() => readValidatedProfileJson(dir), /^cannot read profile .*taperline-options-\S+: /);
 });
 
-test('the backend (serve, desktop app) refuses a bad profile file with the file and key named, before any port opens', async (t) => {
+test('the stations of serve and the desktop app refuse a bad profile file with the file and key named, before any port opens', async (t) => {
   const dir = mkdtempSync(join(tmpdir(), 'taperline-options-'));
   t.after(() => rmSync(dir, { recursive: true, force: true }));
   const badKey = join(dir, 'bench.json');
   writeFileSync(badKey, JSON.stringify({ ...PROFILE, cells: 0 }));
-  const start = (profilePath: string) =>
+  const start = async (profilePath: string) =>
     startBackend({
       dbPath: null,
-      serial: { path: join(dir, 'no-such-port'), baudRate: 115200, profilePath },
+      stations: stationsFromOptions({ ports: [join(dir, 'no-such-port')], profilePath, simulate: [] }),
     });
   await assert.rejects(start(badKey), (err: unknown) => {
-    assert.ok(err instanceof BackendStartError);
+    assert.ok(err instanceof InputFileError);
     assert.match(err.message, /^profile .*bench\.json refused: cells: /);
     return true;
   });
   await assert.rejects(start(join(dir, 'gone.json')), (err: unknown) => {
-    assert.ok(err instanceof BackendStartError);
+    assert.ok(err instanceof InputFileError);
     assert.match(err.message, /^no such profile file: .*gone\.json$/);
     return true;
   });

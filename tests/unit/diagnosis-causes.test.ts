@@ -104,6 +104,28 @@ test('damaged-cell: precondition that does not end, voltage that does not rise',
   assert.match(d.causes[0].next.join(' '), /2\.5 V/);
 });
 
+test('damaged-cell: a pack hovering at the threshold until the precondition timer expired ranks first', () => {
+  // The engine holds precondition until 1 % above the ~3.0 V/cell threshold (Junlee blog;
+  // ElectroDragon wiki "Lithium Battery Charge"); this invented pack rises 8.40 -> 9.05 V (3S) at
+  // C/10 and crosses 9.00 V but never clears 9.09 V in the 30 min limit: the timer expires.
+  const profile = liion3s({ preconditionTimeoutMin: 30 });
+  const samples = history(1800, 2, (t) => ({
+    vbatV: 8.4 + (0.65 * t) / 1800,
+    ibatA: 0.25,
+    tempC: 24,
+    vinV: 19,
+  }));
+  const events = [phase(0, 'precondition'), critical(1800, 'precondition-timeout'), phase(1800, 'fault')];
+  const d = diagnose({ profile, samples, events });
+  assertTrueCauseFirst(d, 'damaged-cell');
+  assert.ok(d.causes[0].confidence >= 0.5, `damaged-cell at ${d.causes[0].confidence}`);
+  assert.ok(!d.causes.some((c) => c.code === 'unknown'), 'the fault is explained');
+  assert.match(
+    d.causes[0].evidence.join(' | '),
+    /the precondition timer expired: the pack stayed in precondition for 30 min/,
+  );
+});
+
 test('damaged-cell: a pack above 3.0 V/cell is not held in precondition', () => {
   // 3.1 V/cell is above the ~3.0 V/cell precondition threshold (Junlee blog; ElectroDragon wiki "Lithium Battery Charge").
   const samples = history(1800, 2, () => ({ vbatV: 9.3, ibatA: 0.2, tempC: 24 }));

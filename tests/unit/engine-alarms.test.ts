@@ -24,7 +24,16 @@ const only = (events: EngineEvent[], code: string): AlarmEvent => {
 
 test('levels: critical only where someone must act (docs/codes.md)', () => {
   const critical = ALARM_CODES.filter((c) => ALARM_RULES[c].level === 'critical').sort();
-  assert.deepEqual(critical, ['fault-pin', 'overtemp', 'overvoltage', 'precondition-timeout', 'timer']);
+  assert.deepEqual(critical, [
+    'fault-pin',
+    'overtemp',
+    'overvoltage',
+    'precondition-timeout',
+    'sensor-fault',
+    'timer',
+  ]);
+  // contact is raised as a warning and escalated only when it keeps repeating.
+  assert.equal(ALARM_RULES.contact.level, 'warn');
   assert.equal(ALARM_RULES['input-low'].level, 'warn');
   assert.equal(ALARM_RULES.undertemp.level, 'warn');
   assert.equal(ALARM_RULES['reverse-current'].level, 'warn');
@@ -233,17 +242,26 @@ test('silence: raised once by tick after silenceS, cleared by the next sample', 
   assert.equal(clears(back, 'silence').length, 1);
 });
 
-test('silence in a replayed file (no ticks): a hole in the data raises and clears it', () => {
+test('silence in a replayed file (no ticks): a hole in the data is a gap; it raises and clears silence', () => {
   const engine = createRunEngine(li());
   pushAll(engine, steady(0, 10, 1, { vbatV: 11.4, ibatA: 1 }));
+  const ahBefore = engine.summary().ah;
   const events = engine.push({ t: 70, rxS: 70, vbatV: 11.4, ibatA: 1, extra: {} });
   assert.deepEqual(
     events.map((e) => [e.type, e.t]),
     [
       ['alarm', 19],
+      ['gap', 9],
       ['alarm-clear', 70],
     ],
   );
+  const gap = events.find((e) => e.type === 'gap');
+  assert.equal(gap?.type === 'gap' && gap.durationS, 61);
+  // Nothing is integrated across the 61 s gap: no charge, no phase time.
+  assert.equal(engine.summary().ah, ahBefore);
+  assert.equal(engine.summary().durationS, 70);
+  const phaseS = Object.values(engine.summary().phaseS).reduce((a, b) => a + (b ?? 0), 0);
+  assert.equal(phaseS, 9);
 });
 
 test('a reported gap is recorded once and is not also a silence or a stall; its stretch is not integrated', () => {
@@ -255,7 +273,7 @@ test('a reported gap is recorded once and is not also a silence or a stall; its 
   assert.deepEqual(engine.gap(99.5, null, 'port unplugged'), []);
   for (let t = 100; t < 1000; t += 1) assert.deepEqual(engine.tick(t), []);
   const closed = engine.gap(99.5, 1000, 'port back');
-  assert.deepEqual(closed, [{ type: 'gap', t: 99.5, endT: 1000, reason: 'port back' }]);
+  assert.deepEqual(closed, [{ type: 'gap', t: 99.5, endT: 1000, durationS: 900.5, reason: 'port back' }]);
   assert.deepEqual(engine.gap(99.5, 1000, 'port back'), []);
   const after = pushAll(engine, steady(1000, 60, 1, { vbatV: 11.4, ibatA: 1 }));
   assert.deepEqual(after, []);
@@ -292,4 +310,19 @@ test('the same alarm is raised once per episode and again after it cleared', () 
   ]);
   assert.equal(alarmsOf(events).filter((a) => a.code === 'overtemp').length, 2);
   assert.equal(clears(events, 'overtemp').length, 1);
+});
+
+test('a reported gap is not announced twice when the first line after it was a time glitch', () => {
+  const engine = createRunEngine(li());
+  pushAll(engine, steady(0, 5, 1, { vbatV: 11.4, ibatA: 1 }));
+  assert.equal(engine.gap(4.5, null, 'port unplugged').length, 1);
+  // The time base placed the first line back with no elapsed time (its device clock jumped).
+  const glitch = engine.push({ t: 4, rxS: 4, vbatV: 11.4, ibatA: 1, extra: {} });
+  const next = engine.push({ t: 21, rxS: 21, vbatV: 11.4, ibatA: 1, extra: {} });
+  assert.deepEqual(
+    [...glitch, ...next].filter((e) => e.type === 'gap'),
+    [],
+  );
+  // Nothing integrated over the interruption: 4 s of charge before it only.
+  assert.ok(Math.abs(engine.summary().ah - 4 / 3600) < 1e-12);
 });

@@ -21,7 +21,10 @@ test('coulomb counting worked example: I = [0,1,2,2,1] A every 900 s -> 1.375 Ah
   close(counter.wh, 5.5, 1e-12, 'Wh at a constant 4 V');
   assert.equal(counter.sourceWhOrNull(), null);
 
-  const engine = createRunEngine(profileFromChemistry('li-ion', 1, { capacityAh: 2.5, chargeCurrentA: 2 }));
+  // Samples 900 s apart are only a run, not gaps, with a silence limit above 900 s.
+  const engine = createRunEngine(
+    profileFromChemistry('li-ion', 1, { capacityAh: 2.5, chargeCurrentA: 2, silenceS: 1000 }),
+  );
   pushAll(
     engine,
     currents.map((ibatA, i): TimedSample => ({ t: i * 900, rxS: i * 900, vbatV: 4, ibatA, extra: {} })),

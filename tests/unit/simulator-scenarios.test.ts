@@ -17,7 +17,7 @@ import type { Sample } from '@shared/telemetry/types';
 
 const PROFILE_DIR = join(__dirname, '..', 'fixtures', 'profiles');
 
-test('the eleven scenarios are listed with one-line descriptions', () => {
+test('the sixteen scenarios are listed with one-line descriptions', () => {
   const list = listScenarios();
   assert.deepEqual(
     list.map((s) => s.name),
@@ -33,6 +33,11 @@ test('the eleven scenarios are listed with one-line descriptions', () => {
       'loose-connection',
       'overvoltage-drift',
       'weak-panel-timer',
+      'board-in-spec',
+      'board-sense-low',
+      'board-sense-high',
+      'board-divider-high',
+      'board-timer-cap-half',
     ],
   );
   for (const s of list) assert.ok(s.description.length > 20 && !s.description.includes('\n'), s.name);

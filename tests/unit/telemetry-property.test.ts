@@ -218,3 +218,142 @@ test('a control byte anywhere in an otherwise good line makes it not-text', () =
     { numRuns: 3000 },
   );
 });
+
+test('bytes mode (replay) and text mode frame and parse every line the same, each line once', () => {
+  fc.assert(
+    fc.property(
+      fc.oneof(streamArb, fc.uint8Array({ maxLength: 600 })),
+      fc.integer({ min: 1, max: 64 }),
+      fc.integer({ min: 8, max: 200 }),
+      (bytes, chunkSize, maxBytes) => {
+        const textParser = createLineParser(OPTIONS);
+        const byteParser = createLineParser(OPTIONS);
+        const fromText: LineResult[] = [];
+        const fromBytes: LineResult[] = [];
+        const textFramer = new LineFramer((text, tooLong) => {
+          fromText.push(textParser.parse(text, fromText.length, tooLong));
+        }, maxBytes);
+        const byteFramer = LineFramer.ofBytes((b, from, to, tooLong) => {
+          fromBytes.push(byteParser.parseBytes(b, from, to, fromBytes.length, tooLong));
+        }, maxBytes);
+        for (let pos = 0; pos < bytes.length; pos += chunkSize) {
+          textFramer.push(bytes.subarray(pos, pos + chunkSize));
+          byteFramer.push(bytes.subarray(pos, pos + chunkSize));
+        }
+        textFramer.end();
+        byteFramer.end();
+        assert.deepEqual(fromBytes, fromText);
+        assert.equal(byteFramer.lines, fromBytes.length);
+        const newlines = bytes.reduce((n, b) => n + (b === 10 ? 1 : 0), 0);
+        const tail = bytes.length > 0 && bytes[bytes.length - 1] !== 10 ? 1 : 0;
+        assert.equal(fromBytes.length, newlines + tail);
+      },
+    ),
+    { numRuns: 2000 },
+  );
+});
+
+test('a value that is not finite after conversion never becomes a sample; every sample is finite', () => {
+  // 1e305kV is 1e308 V (finite); 1e306kV, 1e400 and 9e307kOhm are beyond the range of doubles.
+  const overflowArb = fc.constantFrom(
+    '1e306kV',
+    '1e400',
+    '-1e999',
+    '2e308',
+    '1e305kV',
+    '9e307kOhm',
+    '1e303MOhm',
+  );
+  const goodArb = fc.oneof(
+    fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }).map(String),
+    fc.constantFrom('8214mV', '0.6A', '27.1C', '10k', '1', '0'),
+  );
+  const keyArb = fc.constantFrom('t', 'vbat', 'vb', 'ibat', 'temp', 'ntc', 'vin', 'iin', 'duty');
+  const pairArb = fc.tuple(keyArb, fc.oneof(goodArb, overflowArb));
+  fc.assert(
+    fc.property(
+      fc.array(pairArb, { minLength: 1, maxLength: 8 }),
+      fc.constantFrom('kv', 'json'),
+      (pairs, shape) => {
+        const parser = createLineParser(OPTIONS);
+        // JSON keeps the last value of a repeated key; key=value reads every pair.
+        const read = shape === 'json' ? Object.entries(Object.fromEntries(pairs)) : pairs;
+        const line =
+          shape === 'kv'
+            ? pairs.map(([k, v]) => `${k}=${v}`).join(' ')
+            : JSON.stringify(Object.fromEntries(pairs));
+        const result = parser.parse(line, 0);
+        // Each pair judged alone: one implausible pair makes the whole line a rejection.
+        const alone = read.map(([k, v]) => createLineParser(OPTIONS).parse(`${k}=${v}`, 0));
+        if (alone.some((r) => r.kind === 'rejected' && r.reason === 'implausible')) {
+          assert.equal(result.kind, 'rejected', line);
+        }
+        if (result.kind === 'sample') {
+          const s = result.sample;
+          for (const v of [s.deviceS, s.vbatV, s.ibatA, s.tempC, s.ntcRaw, s.vinV, s.iinA])
+            if (v !== undefined) assert.ok(Number.isFinite(v), `${line}: ${v}`);
+          for (const v of Object.values(s.extra))
+            if (typeof v === 'number') assert.ok(Number.isFinite(v), line);
+        }
+      },
+    ),
+    { numRuns: 3000 },
+  );
+});
+
+test('key=value lines read from bytes and from text give the same result (the replay fast path)', () => {
+  const keyArb = fc.constantFrom(
+    't',
+    'vbat',
+    'vb',
+    'VB',
+    'vbatx',
+    'ibat',
+    'temp',
+    'ntc',
+    'chg',
+    'flt',
+    'src',
+    'Vin',
+    'iin',
+    'duty',
+    'a_long_key',
+  );
+  const valueArb = fc.oneof(
+    fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
+    fc.integer().map(String),
+    fc.constantFrom(
+      '0',
+      '1',
+      '2',
+      '-',
+      '+',
+      '.',
+      '1.',
+      '.5',
+      '-.5',
+      '+3',
+      '00012',
+      '1234567890123456',
+      '0.1234567890123456789012',
+      'panel',
+      'adapter',
+      'none',
+      'Panel',
+      'solar',
+      '8214mV',
+      '',
+      '1,5',
+    ),
+  );
+  const sepArb = fc.constantFrom(' ', ',', ';', '\t', '  ', ', ');
+  fc.assert(
+    fc.property(fc.array(fc.tuple(keyArb, valueArb, sepArb), { minLength: 1, maxLength: 10 }), (pairs) => {
+      const line = pairs.map(([k, v, sep], i) => (i === 0 ? '' : sep) + `${k}=${v}`).join('');
+      const bytes = new TextEncoder().encode(line);
+      const fromBytes = createLineParser(OPTIONS).parseBytes(bytes, 0, bytes.length, 3);
+      assert.deepEqual(fromBytes, createLineParser(OPTIONS).parse(line, 3), line);
+    }),
+    { numRuns: 4000 },
+  );
+});

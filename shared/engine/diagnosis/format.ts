@@ -15,4 +15,4 @@ export function fmtT(t: number): string {
   return `t = ${formatRunClock(t)}`;
 }
 
-export const clamp01 = (x: number): number => (x < 0 ? 0 : x > 1 ? 1 : x);
+export const clamp01 = (x: number): number => (x > 0 ? (x > 1 ? 1 : x) : 0);

@@ -49,6 +49,9 @@ export class EnergyCounter {
   /** Pack Wh / source Wh over the intervals where both are known; null until the source delivered energy. */
   efficiency(): number | null {
     if (!this.sourceSeen || !(this.sourceWh > 1e-9)) return null;
-    return this.packWhWithSource / this.sourceWh;
+    const e = this.packWhWithSource / this.sourceWh;
+    // A ratio outside 0..1 is not an efficiency (a pack discharging, sensors that disagree): clamp it.
+    if (!Number.isFinite(e)) return null;
+    return e < 0 ? 0 : e > 1 ? 1 : e;
   }
 }

@@ -37,6 +37,7 @@ export class SocEstimator {
   pct(ah: number): number | null {
     if (!this.capacityKnown || this.anchorPct !== this.anchorPct) return null;
     const pct = this.anchorPct + ((ah - this.anchorAh) / this.capacityAh) * 100;
+    if (pct !== pct) return null;
     return pct < 0 ? 0 : pct > 100 ? 100 : pct;
   }
 }

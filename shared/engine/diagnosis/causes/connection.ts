@@ -3,6 +3,7 @@
  * Signs: sudden pack-voltage steps with no current step, apparent resistance that rises over the
  * run, and gaps or dropouts in the telemetry.
  */
+import { CONTACT_OPENING, CONTACT_STEP, ContactWatch, contactLimits } from '../../contact-watch';
 import type { DiagnosisContext } from '../context';
 import { clamp01, fmtDuration, fmtOhm, fmtT, fmtV } from '../format';
 import { median, minResistanceStepA, resistanceSteps } from '../measures';
@@ -11,10 +12,11 @@ import type { Cause } from '../types';
 export function scoreConnection(ctx: DiagnosisContext): Cause {
   const evidence: string[] = [];
   let score = 0;
-  score += voltageSteps(ctx, evidence);
+  const found = contactEvidence(ctx);
+  score += voltageSteps(ctx, found, evidence);
   score += risingResistance(ctx, evidence);
   score += dropouts(ctx, evidence);
-  score += contactOpenings(ctx, evidence);
+  score += contactOpenings(found, evidence);
   return {
     code: 'connection',
     confidence: clamp01(Math.min(0.95, score)),
@@ -28,38 +30,48 @@ export function scoreConnection(ctx: DiagnosisContext): Cause {
   };
 }
 
-/** Pack-voltage steps between neighbouring samples while the current stayed put. */
-function voltageSteps(ctx: DiagnosisContext, evidence: string[]): number {
-  const { profile, samples, end } = ctx;
-  const stepV = 0.05 * profile.cells;
-  const steadyA = Math.max(0.02, 0.05 * profile.chargeCurrentA);
+/** Contact evidence of the history, from the same detector as the live `contact` alarm. */
+interface ContactEvidence {
+  steps: { t: number; dV: number }[];
+  openings: { t: number; rose: boolean }[];
+}
+
+function contactEvidence(ctx: DiagnosisContext): ContactEvidence {
+  const { samples, end } = ctx;
+  const watch = new ContactWatch(contactLimits(ctx.profile));
   const maxDtS = Math.max(5, 3 * ctx.typicalDtS);
-  let count = 0;
+  const out: ContactEvidence = { steps: [], openings: [] };
+  for (let i = 0; i < end; i++) {
+    const s = samples[i];
+    const vbatV = s.vbatV ?? NaN;
+    const absent = s.src === 'none' || (s.vinV !== undefined && vbatV === vbatV && s.vinV < vbatV);
+    const seen = watch.feed(s.t, vbatV, s.ibatA ?? NaN, maxDtS, absent);
+    if (seen === CONTACT_STEP) out.steps.push({ t: s.t, dV: watch.stepDv });
+    else if (seen === CONTACT_OPENING) out.openings.push({ t: watch.openingT, rose: watch.openingRose });
+  }
+  return out;
+}
+
+/** Pack-voltage steps between neighbouring samples while the current stayed put. */
+function voltageSteps(ctx: DiagnosisContext, found: ContactEvidence, evidence: string[]): number {
+  const lim = contactLimits(ctx.profile);
+  const count = found.steps.length;
+  if (count === 0) return 0;
   let reversals = 0;
   let lastSign = 0;
   let lastStepT = -Infinity;
   let largest = { dV: 0, t: 0 };
-  for (let i = 1; i < end; i++) {
-    const a = samples[i - 1];
-    const b = samples[i];
-    if (a.vbatV === undefined || b.vbatV === undefined || a.ibatA === undefined || b.ibatA === undefined)
-      continue;
-    const dt = b.t - a.t;
-    if (dt <= 0 || dt > maxDtS) continue;
-    const dV = b.vbatV - a.vbatV;
-    if (Math.abs(dV) < stepV || Math.abs(b.ibatA - a.ibatA) > steadyA) continue;
-    count++;
-    const sign = Math.sign(dV);
+  for (const step of found.steps) {
+    const sign = Math.sign(step.dV);
     // A step back within a minute: the contact opened and closed again.
-    if (sign === -lastSign && b.t - lastStepT <= 60) reversals++;
+    if (sign === -lastSign && step.t - lastStepT <= 60) reversals++;
     lastSign = sign;
-    lastStepT = b.t;
-    if (Math.abs(dV) > Math.abs(largest.dV)) largest = { dV, t: b.t };
+    lastStepT = step.t;
+    if (Math.abs(step.dV) > Math.abs(largest.dV)) largest = step;
   }
-  if (count === 0) return 0;
   evidence.push(
-    `pack voltage stepped ${count} time(s) by more than ${fmtV(stepV)} between neighbouring samples while the current ` +
-      `stayed within ${steadyA.toFixed(2)} A (largest ${largest.dV > 0 ? '+' : ''}${largest.dV.toFixed(2)} V at ${fmtT(largest.t)})`,
+    `pack voltage stepped ${count} time(s) by more than ${fmtV(lim.stepV)} between neighbouring samples while the current ` +
+      `stayed within ${lim.steadyA.toFixed(2)} A (largest ${largest.dV > 0 ? '+' : ''}${largest.dV.toFixed(2)} V at ${fmtT(largest.t)})`,
   );
   let score = count >= 2 ? Math.min(0.55, 0.12 * count) : 0.08;
   if (reversals >= 2) {
@@ -131,39 +143,12 @@ function dropouts(ctx: DiagnosisContext, evidence: string[]): number {
  * Brief openings: the current falls to nothing for under a minute and comes back, with the
  * pack voltage jumping up meanwhile (the charger sees its own set point, not the pack).
  */
-function contactOpenings(ctx: DiagnosisContext, evidence: string[]): number {
-  const { profile, samples, end } = ctx;
-  const flowingA = 0.3 * profile.chargeCurrentA;
-  const zeroA = Math.max(0.005, 0.02 * profile.chargeCurrentA);
-  let openings = 0;
-  let firstT = 0;
-  let openFrom = -1;
-  let vBefore = 0;
-  let vMax = 0;
-  let rises = 0;
-  for (let i = 1; i < end; i++) {
-    const a = samples[i - 1];
-    const b = samples[i];
-    if (a.ibatA === undefined || b.ibatA === undefined) continue;
-    if (openFrom < 0 && a.ibatA >= flowingA && b.ibatA <= zeroA) {
-      openFrom = i;
-      vBefore = a.vbatV ?? 0;
-      vMax = b.vbatV ?? 0;
-    } else if (openFrom >= 0) {
-      if (b.ibatA <= zeroA) {
-        vMax = Math.max(vMax, b.vbatV ?? 0);
-        if (b.t - samples[openFrom].t > 60) openFrom = -1; // a long stop is a phase change, not a bounce
-      } else if (b.ibatA >= flowingA) {
-        if (openings === 0) firstT = samples[openFrom].t;
-        openings++;
-        if (vMax > vBefore) rises++;
-        openFrom = -1;
-      } else openFrom = -1;
-    }
-  }
+function contactOpenings(found: ContactEvidence, evidence: string[]): number {
+  const openings = found.openings.length;
   if (openings < 2) return 0;
+  const rises = found.openings.filter((o) => o.rose).length;
   evidence.push(
-    `the current dropped to zero and came back within a minute ${openings} time(s) from ${fmtT(firstT)}` +
+    `the current dropped to zero and came back within a minute ${openings} time(s) from ${fmtT(found.openings[0].t)}` +
       (rises > openings / 2 ? ', the pack voltage jumping up each time: the contact opened' : ''),
   );
   return Math.min(0.3, 0.05 * openings);

@@ -33,8 +33,80 @@ export function scoreDamagedCell(ctx: DiagnosisContext): Cause {
   };
 }
 
+/**
+ * The precondition timer itself expired: the engine held the pack in precondition until its
+ * precondition-timeout alarm. That verdict is the evidence (the time criterion is met by
+ * definition), so it is scored from the engine's precondition span rather than re-derived
+ * from a threshold crossing, which a pack hovering at the threshold breaks into pieces.
+ */
+function expiredPrecondition(ctx: DiagnosisContext, evidence: string[]): number | null {
+  const { profile, samples, end } = ctx;
+  const alarm = ctx.alarms.find((a) => a.code === 'precondition-timeout');
+  if (alarm === undefined) return null;
+  let span: { startT: number; endT: number } | null = null;
+  for (const p of ctx.phases) if (p.phase === 'precondition' && p.startT <= alarm.t) span = p;
+  if (span === null) return null;
+  const timeoutS = profile.preconditionTimeoutMin * 60;
+  const heldS = Math.min(alarm.t, span.endT) - span.startT;
+  // Raised by the fault output in precondition rather than the timer: judged by the stretch rule.
+  if (heldS < 0.95 * timeoutS) return null;
+  let firstV = NaN;
+  let lastV = NaN;
+  let maxA = 0;
+  for (let i = 0; i < end; i++) {
+    const s = samples[i];
+    if (s.t < span.startT || s.t > alarm.t) continue;
+    if (s.vbatV !== undefined) {
+      if (firstV !== firstV) firstV = s.vbatV;
+      lastV = s.vbatV;
+    }
+    if ((s.ibatA ?? 0) > maxA) maxA = s.ibatA ?? 0;
+  }
+  const exitV = profile.preconditionVPerCell * profile.cells;
+  evidence.push(
+    `the precondition timer expired: the pack stayed in precondition for ${fmtDuration(heldS)} from ${fmtT(span.startT)} ` +
+      `(limit ${profile.preconditionTimeoutMin} min) under at most ${fmtA(maxA)} and did not pass the ${fmtV(exitV)} precondition threshold`,
+  );
+  let score = 0.45;
+  const lastPhase = ctx.phases.length ? ctx.phases[ctx.phases.length - 1].phase : null;
+  if (lastPhase === 'precondition' || lastPhase === 'fault') {
+    score += 0.1;
+    evidence.push(`the pack never left precondition before ${fmtT(ctx.t)}`);
+  }
+  const riseVPerCell = (lastV - firstV) / profile.cells;
+  if (riseVPerCell === riseVPerCell) {
+    // A healthy deeply discharged cell lifts by tenths of a volt within minutes at C/10 (common practice).
+    if (riseVPerCell < 0.05) {
+      score += 0.25;
+      evidence.push(
+        `over that time the voltage changed by ${(riseVPerCell * 1000).toFixed(0)} mV per cell (${fmtV(firstV)} to ${fmtV(lastV)}): the charge is not being stored`,
+      );
+    } else {
+      score += 0.05;
+      evidence.push(
+        `the voltage rose ${(riseVPerCell * 1000).toFixed(0)} mV per cell (${fmtV(firstV)} to ${fmtV(lastV)}) yet did not clear the threshold in the whole precondition time`,
+      );
+    }
+  }
+  return score;
+}
+
 /** Precondition (pack under its threshold with a small current) that lasted and did not lift the voltage. */
 function stuckPrecondition(ctx: DiagnosisContext, evidence: string[]): number {
+  const byStretch: string[] = [];
+  const stretchScore = preconditionStretch(ctx, byStretch);
+  const byTimer: string[] = [];
+  const timerScore = expiredPrecondition(ctx, byTimer);
+  if (timerScore !== null && timerScore > stretchScore) {
+    evidence.push(...byTimer);
+    return timerScore;
+  }
+  evidence.push(...byStretch);
+  return stretchScore;
+}
+
+/** The longest stretch under the precondition threshold with current flowing, from the samples. */
+function preconditionStretch(ctx: DiagnosisContext, evidence: string[]): number {
   const { profile, samples, end } = ctx;
   const thresholdV = profile.preconditionVPerCell * profile.cells;
   const minFlowA = Math.max(0.005, 0.01 * profile.chargeCurrentA);

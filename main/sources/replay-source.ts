@@ -9,30 +9,17 @@
  */
 import { EventEmitter } from 'node:events';
 import type { RunReader } from '../recorder/types';
-import type { LineSource, LineSourceEvents, SourceLine } from '../sources/types';
-import type { RecordedClockSource } from '../station/manager';
-
-/** A replay is asked for as a simulator source whose scenario names the run: `run:12` or `run:12:max`. */
-export const REPLAY_SCENARIO = /^run:(\d{1,12})(:max)?$/;
-
-export function replayScenarioName(runId: number, speed: number | 'max'): string {
-  return speed === 'max' ? `run:${runId}:max` : `run:${runId}`;
-}
-
-export function parseReplayScenario(scenario: string): { runId: number; max: boolean } | null {
-  const match = REPLAY_SCENARIO.exec(scenario);
-  return match ? { runId: Number(match[1]), max: match[2] !== undefined } : null;
-}
+import type { LineSource, LineSourceEvents, SourceLine } from './types';
 
 /** Lines handed out per timer turn, so a fast replay never starves the event loop. */
 const MAX_LINES_PER_TURN = 500;
 /** Longest single wait, so stop() is never held up by a long gap in the recording. */
 const MAX_WAIT_MS = 250;
 
-export class ReplaySource extends EventEmitter<LineSourceEvents> implements LineSource, RecordedClockSource {
+export class ReplaySource extends EventEmitter<LineSourceEvents> implements LineSource {
   readonly label: string;
   /** The lines carry the recording's clock: the station manager must not tick silence on wall time. */
-  readonly recordedClock = true;
+  readonly recordedClock = true as const;
   private iterator: Iterator<{ text: string; rxS: number; tooLong?: boolean }> | null = null;
   private pending: SourceLine | null = null;
   private firstRecordedRxS: number | null = null;

@@ -1,0 +1,91 @@
+/**
+ * The Batch report of a 16-board burn-in (simulated boards, invented parts) in a real Chromium
+ * (playwright-core): the yield, one row per board, one strip plot per measured value with the
+ * design limits, no request beyond its own file. Screenshot: test-results/screenshots/batch-report.png.
+ */
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { chromium } from 'playwright-core';
+import { parseProfile } from '@shared/chemistry/profile';
+import { createTelemetryRun } from '../../main/simulator';
+import { batchBoards, truthInSpec } from '../../main/simulator/board-scenarios';
+import { CHROMIUM_ARGS } from '../../main/report';
+import { RunCollector } from '../../main/report/collect-run';
+import { judgeRun, summarizeBatch } from '../../main/report/judge-run';
+import { buildBatchReportHtml } from '../../main/report/batch';
+
+const CHROMIUM = '/usr/bin/chromium';
+
+function batchHtml(): { html: string; expectedPass: number; keys: number } {
+  // Seed 7 of the invented lot: 12 of 16 boards in spec by the model's truth.
+  const boards = batchBoards(16, 7);
+  const judged = boards.map((board) => {
+    const parsed = parseProfile(board.profile);
+    assert.ok(parsed.ok);
+    const collector = new RunCollector(parsed.profile);
+    for (const line of createTelemetryRun(board, { shape: 'kv', sampleIntervalS: 5 }).lines())
+      collector.push(line.text, line.simS, false);
+    const run = collector.finish();
+    return judgeRun(run, { ...run.identity, operator: 'demo operator', batch: 'B7' }, board.name);
+  });
+  const summary = summarizeBatch(judged);
+  return {
+    html: buildBatchReportHtml(judged, summary, 'Batch B7: garden-sensor charger boards (demo)'),
+    expectedPass: boards.filter((b) => truthInSpec(b.truth)).length,
+    keys: judged[0].report.checks.filter((c) => c.measured !== null).length,
+  };
+}
+
+test(
+  'the Batch report renders in Chromium: yield, one row per board, a strip plot per measured value',
+  { skip: !existsSync(CHROMIUM) && 'no /usr/bin/chromium' },
+  async (t) => {
+    const dir = mkdtempSync(join(tmpdir(), 'taperline-batch-report-'));
+    t.after(() => rmSync(dir, { recursive: true, force: true }));
+    const { html, expectedPass, keys } = batchHtml();
+    const htmlPath = join(dir, 'batch.html');
+    writeFileSync(htmlPath, html);
+    const fileUrl = pathToFileURL(htmlPath).href;
+
+    const browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
+    t.after(() => browser.close());
+    const page = await browser.newPage({ viewport: { width: 1200, height: 900 } });
+    const requests: string[] = [];
+    page.on('request', (r) => requests.push(r.url()));
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto(fileUrl, { waitUntil: 'load' });
+    await page.waitForFunction(() => document.body.hasAttribute('data-charts-ready'));
+    assert.deepEqual(errors, []);
+    assert.deepEqual(requests, [fileUrl], 'self-contained');
+
+    assert.match(
+      await page.locator('#batch-yield').innerText(),
+      new RegExp(
+        `Yield ${Math.round((1000 * expectedPass) / 16) / 10} %: ${expectedPass} pass, ${16 - expectedPass} fail`,
+      ),
+    );
+    assert.equal(await page.locator('#batch-boards tbody tr').count(), 16);
+    assert.equal((await page.locator('#batch-boards .v-fail').count()) >= 16 - expectedPass, true);
+    const canvases = await page.locator('#batch-spread canvas').evaluateAll((els) =>
+      els.map((el) => {
+        const c = el as HTMLCanvasElement;
+        const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+        let inked = 0;
+        for (let i = 3; i < data.length; i += 4) if (data[i] > 0) inked++;
+        return { id: c.id, inked, total: c.width * c.height };
+      }),
+    );
+    assert.equal(canvases.length, keys, 'one strip plot per measured value');
+    for (const c of canvases) assert.ok(c.inked > c.total * 0.01, `${c.id} drew (${c.inked} px)`);
+
+    mkdirSync(join('test-results', 'screenshots'), { recursive: true });
+    const shot = join('test-results', 'screenshots', 'batch-report.png');
+    await page.screenshot({ path: shot, fullPage: true });
+    assert.ok(existsSync(shot));
+  },
+);
