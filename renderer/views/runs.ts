@@ -10,6 +10,7 @@ import type { Navigator, View } from '../router';
 import { errorText, readRuns, readStation, type RunListRow } from '../wire';
 import { filterRuns, type RunFilter } from './run-filter';
 import { RunOverlay, type OverlayAlign } from './run-overlay';
+import { packKeys, renderPackHistory } from './pack-history';
 
 const REPLAY_SPEEDS: { label: string; value: number | 'max' }[] = [
   { label: '1× (as recorded)', value: 1 },
@@ -52,6 +53,8 @@ export class RunsView implements View {
   private readonly overlay: RunOverlay;
   private readonly alignSelect = h('select', { id: 'overlay-align' });
   private readonly overlayBtn: HTMLButtonElement;
+  private readonly packSelect = h('select', { id: 'pack-history' });
+  private readonly packHost = h('div', { class: 'pack-history-host' });
   private filter: RunFilter = { text: '', from: '', to: '', ended: '' };
   private readonly filterBar = h('div', {
     class: 'runs-filter',
@@ -77,6 +80,7 @@ export class RunsView implements View {
       id: 'overlay-runs',
     });
     this.overlayBtn.disabled = true;
+    this.packSelect.addEventListener('change', () => this.renderPackChoices());
     root.append(
       h(
         'div',
@@ -111,6 +115,14 @@ export class RunsView implements View {
       this.status,
       this.tableHost,
       this.overlay.root,
+      h(
+        'section',
+        { class: 'pack-history-section', 'aria-labelledby': 'pack-history-title' },
+        h('h3', { id: 'pack-history-title' }, 'Pack history'),
+        h('label', { for: 'pack-history', class: 'field-label' }, 'Pack (board id, or profile name)'),
+        this.packSelect,
+        this.packHost,
+      ),
     );
     this.buildFilterBar();
   }
@@ -168,11 +180,25 @@ export class RunsView implements View {
     try {
       this.runs = readRuns(await this.api.request('runs.list', {})).sort((a, b) => b.startRxS - a.startRxS);
       this.renderTable();
+      this.renderPackChoices();
     } catch (err) {
       this.tableHost.replaceChildren(
         h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`),
       );
     }
+  }
+
+  private renderPackChoices(): void {
+    const keep = this.packSelect.value;
+    const keys = packKeys(this.runs);
+    this.packSelect.replaceChildren(
+      h('option', { value: '' }, keys.length ? 'Pick a pack…' : 'No pack has two runs yet'),
+      ...keys.map((k) =>
+        h('option', { value: k.key, selected: k.key === keep }, `${k.key} (${k.count} runs)`),
+      ),
+    );
+    if (keep && keys.some((k) => k.key === keep)) renderPackHistory(this.packHost, this.runs, keep);
+    else this.packHost.replaceChildren();
   }
 
   private renderTable(): void {

@@ -35,6 +35,8 @@ test('two runs overlaid at the cc→cv change', { timeout: 180_000 }, async (t) 
   await page.locator('#scenario-bench-liion-3s').check();
   await page.locator('#sim-speedup').fill('1200');
   await page.locator('#station-id').fill('shelf-2');
+  // The same pack name as the command-line station, so the two runs form one pack's history.
+  await page.locator('#profile-name').fill('garden-sensor 3S Li-ion (demo)');
   await page.locator('#add-station').click();
   await page.locator('#view-bench').waitFor({ state: 'visible', timeout: 15_000 });
   // Both charges reach done (about 8 s each at 1200x).
@@ -71,4 +73,17 @@ test('two runs overlaid at the cc→cv change', { timeout: 180_000 }, async (t) 
   assert.equal(inked.length, 3);
   for (const f of inked) assert.ok(f > 0.01, `a chart drew its runs (${f})`);
   await screenshot(page, 'runs-overlay');
+
+  // Per-pack history: the runs of the same pack, oldest first, the first completed one the reference.
+  await page.locator('#pack-history').selectOption('profile garden-sensor 3S Li-ion (demo)');
+  const history = page.locator('.pack-history');
+  await history.waitFor();
+  assert.deepEqual(
+    await history.locator('tbody tr').evaluateAll((els) => els.map((e) => e.getAttribute('data-run'))),
+    ['1', '2'],
+  );
+  assert.match((await history.locator('tbody tr').first().textContent()) ?? '', /reference/);
+  assert.match((await history.locator('tbody tr').nth(1).textContent()) ?? '', /[+−]\d+\.\d %/);
+  await history.scrollIntoViewIfNeeded();
+  await screenshot(page, 'runs-pack-history');
 });
