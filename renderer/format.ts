@@ -3,16 +3,7 @@ import { formatRunClock } from '@shared/engine/time-format';
 import type { Phase } from '@shared/engine/types';
 
 /** Seconds of run -> `h:mm` (or `d h:mm` past a day), the label format of every time axis. */
-export function formatRunTime(tS: number): string {
-  if (!Number.isFinite(tS)) return '–';
-  const sign = tS < 0 ? '−' : '';
-  const total = Math.floor(Math.abs(tS));
-  const days = Math.floor(total / 86_400);
-  const hours = Math.floor((total % 86_400) / 3600);
-  const minutes = Math.floor((total % 3600) / 60);
-  const hm = `${hours}:${String(minutes).padStart(2, '0')}`;
-  return days > 0 ? `${sign}${days} d ${hm}` : `${sign}${hm}`;
-}
+export { formatRunTime } from '@shared/display/run-time';
 
 /** Seconds -> `h:mm:ss`, for elapsed times a person reads on the bench. */
 export function formatDuration(durationS: number | null | undefined): string {

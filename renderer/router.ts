@@ -14,7 +14,7 @@ export type ViewTarget =
   | { view: 'bench'; stationId?: string; runId?: number }
   | { view: 'rack' }
   | { view: 'runs' }
-  | { view: 'feed'; stationId?: string }
+  | { view: 'feed'; stationId?: string; samplesBack?: number; aroundLabel?: string }
   | { view: 'connect'; stationId?: string }
   | { view: 'diagnosis'; stationId?: string; runId?: number; atT?: number }
   | { view: 'sweep'; stationId?: string };

@@ -131,7 +131,8 @@ const columnOf: Record<SeriesField, string> = Object.fromEntries(
 
 /** CSV columns with their units in the header (base units of docs/telemetry.md). */
 const CSV_COLUMNS: Array<{ header: string; pick: (s: TimedSample) => unknown }> = [
-  { header: 't (s)', pick: (s) => s.t },
+  { header: 'time (ISO 8601)', pick: (s) => isoWithZone(s.rxS) },
+  { header: 't (s since start)', pick: (s) => s.t },
   { header: 'rx time (s since 1970)', pick: (s) => s.rxS },
   { header: 'device time (s)', pick: (s) => s.deviceS },
   { header: 'vbat (V)', pick: (s) => s.vbatV },
@@ -144,6 +145,19 @@ const CSV_COLUMNS: Array<{ header: string; pick: (s: TimedSample) => unknown }> 
   { header: 'flt (0/1)', pick: (s) => (s.flt === undefined ? undefined : s.flt ? 1 : 0) },
   { header: 'src', pick: (s) => s.src },
 ];
+
+/**
+ * Receive time as ISO 8601 with this machine's UTC offset (`2026-12-02T14:05:09.250+01:00`):
+ * a spreadsheet reads it as a time, and a person reads the wall clock of the bench.
+ */
+export function isoWithZone(unixS: number): string {
+  const d = new Date(unixS * 1000);
+  const offsetMin = -d.getTimezoneOffset();
+  const local = new Date(d.getTime() + offsetMin * 60_000).toISOString().slice(0, -1);
+  const sign = offsetMin < 0 ? '-' : '+';
+  const abs = Math.abs(offsetMin);
+  return `${local}${sign}${String(Math.floor(abs / 60)).padStart(2, '0')}:${String(abs % 60).padStart(2, '0')}`;
+}
 
 export function createRunReader(db: Database.Database): RunReader {
   const q = {

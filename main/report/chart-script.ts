@@ -1,26 +1,24 @@
 /**
  * The report's own browser script, as plain JavaScript text: it reads the embedded run data
  * and draws one Chart.js chart per physical quantity, with the phases shaded and labelled.
- * Kept as a string so it runs unchanged in any browser with no build step.
+ * The phase colours and the run-time format are the dashboard's own (shared/display), put
+ * into the text when the report is built, so the report and the app cannot drift apart.
  */
+import { PHASE_PALETTE } from '@shared/display/phase-palette';
+import { formatRunTime } from '@shared/display/run-time';
+
+const SHADE = Object.fromEntries(
+  Object.entries(PHASE_PALETTE).map(([p, c]) => [p, c.wash.replace(/[\d.]+\)$/, '0.16)')]),
+);
+const INK = Object.fromEntries(Object.entries(PHASE_PALETTE).map(([p, c]) => [p, c.ink]));
+
 export const REPORT_CHART_SCRIPT = String.raw`
 (function () {
   'use strict';
   var data = JSON.parse(document.getElementById('run-data').textContent);
-  var SHADE = {
-    precondition: 'rgba(150, 120, 190, 0.16)',
-    cc: 'rgba(70, 130, 200, 0.14)',
-    cv: 'rgba(60, 160, 110, 0.14)',
-    done: 'rgba(120, 120, 120, 0.12)',
-    fault: 'rgba(210, 60, 50, 0.20)',
-    idle: 'rgba(220, 190, 60, 0.16)'
-  };
-  function clock(t) {
-    var total = Math.max(0, Math.round(t));
-    var h = Math.floor(total / 3600);
-    var m = Math.floor((total % 3600) / 60);
-    return h + ':' + String(m).padStart(2, '0');
-  }
+  var SHADE = ${JSON.stringify(SHADE)};
+  var INK = ${JSON.stringify(INK)};
+  var clock = ${formatRunTime.toString()};
   var phaseBands = {
     id: 'phaseBands',
     beforeDatasetsDraw: function (chart) {
@@ -35,8 +33,8 @@ export const REPORT_CHART_SCRIPT = String.raw`
         ctx.fillStyle = SHADE[p.phase] || 'rgba(0,0,0,0.05)';
         ctx.fillRect(x0, a.top, x1 - x0, a.bottom - a.top);
         if (x1 - x0 > 34) {
-          ctx.fillStyle = '#333';
-          ctx.font = '10px sans-serif';
+          ctx.fillStyle = INK[p.phase] || '#333';
+          ctx.font = '600 10px sans-serif';
           ctx.fillText(p.phase, x0 + 3, a.top + 11);
         }
       });
@@ -52,7 +50,7 @@ export const REPORT_CHART_SCRIPT = String.raw`
         type: 'linear',
         min: data.startT,
         max: data.endT,
-        title: { display: true, text: 'time since start (h:mm)' },
+        title: { display: true, text: 'Run time [h:mm]' },
         ticks: { callback: function (v) { return clock(v); }, maxTicksLimit: 12 }
       }
     };

@@ -1,5 +1,6 @@
 /** Small, safe pieces of HTML: escaping, tables, JSON embedded in a script tag. */
-import { formatRunClock, formatSpan } from '@shared/engine/time-format';
+import { formatRunTimeSeconds } from '@shared/display/run-time';
+import { formatSpan } from '@shared/engine/time-format';
 
 export function escapeHtml(text: string): string {
   return text.replace(
@@ -28,7 +29,7 @@ export function table(headers: string[], rows: string[][], caption?: string): st
   return `<table>${caption ? `<caption>${escapeHtml(caption)}</caption>` : ''}${head}${body}</table>`;
 }
 
-/** h:mm:ss since the first sample. */
-export const clock = formatRunClock;
+/** h:mm:ss since the first sample (d h:mm:ss past a day), as in the app. */
+export const clock = formatRunTimeSeconds;
 
 export const duration = formatSpan;

@@ -170,7 +170,7 @@ export function gapsSection(gaps: GapRow[]): string {
 export function diagnosisSection(d: Diagnosis): string {
   const causes = d.causes.map(
     (c, i) => `<article class="cause" id="cause-${e(c.code)}">
-<h3>${i + 1}. ${e(c.code)} <span class="confidence">confidence ${c.confidence.toFixed(2)}<span class="bar" style="width:${Math.round(
+<h3>${i + 1}. ${e(c.code)} <span class="confidence">${Math.round(c.confidence * 100)} % confidence<span class="bar" style="width:${Math.round(
       c.confidence * 120,
     )}px" aria-hidden="true"></span></span></h3>
 ${c.evidence.length ? `<p><strong>Evidence</strong></p><ul>${c.evidence.map((x) => `<li>${e(x)}</li>`).join('')}</ul>` : ''}
@@ -178,7 +178,7 @@ ${c.next.length ? `<p><strong>Next steps</strong></p><ol>${c.next.map((x) => `<l
 </article>`,
   );
   return `<section id="diagnosis"><h2>Diagnosis</h2>
-<p>Diagnosed at ${clock(d.t)} (${d.t} s since the first sample). Confidence ranks the causes; it is a score, not a probability.</p>
+<p>Diagnosed at ${clock(d.t)} (${d.t} s since the first sample). Causes are ranked by confidence, a score from 0 to 100 %, not a probability.</p>
 ${causes.length ? causes.join('') : '<p class="note">No cause found: nothing in the history points at a fault.</p>'}
 </section>`;
 }

@@ -1,4 +1,6 @@
 /** The report's inline stylesheet: plain, high-contrast, print-friendly (A4, no dark backgrounds). */
+import { phaseCss } from './phase-css';
+
 export const REPORT_CSS = `
 :root { --ink: #1d232a; --muted: #56606b; --rule: #c9ced4; --warn: #8a5a00; --crit: #a32020; }
 * { box-sizing: border-box; }
@@ -20,12 +22,7 @@ td.num { text-align: right; }
 .seg { position: relative; overflow: hidden; border-right: 1px solid var(--ink); display: flex; align-items: center; justify-content: center; font-size: 12px; font-weight: 600; white-space: nowrap; min-width: 2px; }
 .seg:last-child { border-right: 0; }
 .seg span { background: rgba(255,255,255,0.85); padding: 0 4px; border-radius: 2px; }
-.ph-precondition { background: radial-gradient(circle, #7d5ca8 1.2px, transparent 1.6px) 0 0/7px 7px, #ece6f4; }
-.ph-cc { background: repeating-linear-gradient(45deg, #bcd3ee 0 6px, #e9f1fa 6px 12px); }
-.ph-cv { background: repeating-linear-gradient(-45deg, #b5dcc5 0 6px, #e8f5ed 6px 12px); }
-.ph-done { background: #e4e4e4; }
-.ph-fault { background: repeating-linear-gradient(45deg, #e7a19b 0 3px, transparent 3px 9px), repeating-linear-gradient(-45deg, #e7a19b 0 3px, #fbeceb 3px 9px); }
-.ph-idle { background: repeating-linear-gradient(0deg, #ead98a 0 2px, #faf5dc 2px 8px); }
+${phaseCss()}
 .swatch { display: inline-block; width: 28px; height: 14px; border: 1px solid var(--ink); vertical-align: middle; margin-right: 6px; }
 .chart { break-inside: avoid; page-break-inside: avoid; margin: 10px 0 18px; }
 .chart-box { position: relative; height: 260px; width: 100%; }

@@ -73,6 +73,14 @@ export class LocalSeries {
     this.cols.powerW[i] = powerW ?? NaN;
   }
 
+  /** How many samples lie after the one nearest to t (0 = t is at the newest sample). */
+  samplesAfterNearest(t: number): number {
+    if (this.size === 0) return 0;
+    const i = this.indexAtOrAfter(t);
+    const nearest = i >= this.size ? this.size - 1 : i > 0 && t - this.t[i - 1] < this.t[i] - t ? i - 1 : i;
+    return this.size - 1 - nearest;
+  }
+
   /** Does the local series hold everything of [x0, x1] (nothing dropped before x0)? */
   covers(x0: number): boolean {
     return this.dropped === 0 || (this.size > 0 && this.t[0] <= x0);

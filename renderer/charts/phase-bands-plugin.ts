@@ -13,7 +13,7 @@ const MAX_LABEL_ROWS = 3;
 
 export interface TimeMarker {
   t: number;
-  kind: 'pick' | 'diagnosed' | 'alarm-warn' | 'alarm-critical';
+  kind: 'pick' | 'cursor' | 'diagnosed' | 'alarm-warn' | 'alarm-critical';
   /** Drawn at the top of the line (short: "Diagnosed", "overtemp"). */
   label?: string;
 }
@@ -25,6 +25,7 @@ export interface BandSource {
 
 const MARKER_INK: Record<TimeMarker['kind'], string> = {
   pick: '#2b2f36',
+  cursor: 'rgba(43, 47, 54, 0.55)',
   diagnosed: '#a8322a',
   'alarm-warn': '#8a6200',
   'alarm-critical': '#a8322a',
@@ -77,7 +78,7 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
         if (marker.t < x.min || marker.t > x.max) continue;
         const px = Math.round(x.getPixelForValue(marker.t)) + 0.5;
         ctx.strokeStyle = MARKER_INK[marker.kind];
-        ctx.lineWidth = marker.kind === 'pick' ? 1 : 2;
+        ctx.lineWidth = marker.kind === 'pick' || marker.kind === 'cursor' ? 1 : 2;
         ctx.setLineDash(marker.kind === 'pick' ? [4, 3] : marker.kind === 'alarm-warn' ? [2, 2] : []);
         ctx.beginPath();
         ctx.moveTo(px, chartArea.top);

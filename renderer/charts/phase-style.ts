@@ -2,6 +2,7 @@
  * Taperline's phase palette and hatch patterns. Every phase has its own hatch, so the bands
  * behind the charts and the legend read without colour (print, colour-blind eyes).
  */
+import { PHASE_PALETTE } from '@shared/display/phase-palette';
 import type { Phase } from '@shared/engine/types';
 
 export interface PhaseStyle {
@@ -23,8 +24,7 @@ const line = (ctx: CanvasRenderingContext2D, x0: number, y0: number, x1: number,
 
 export const PHASE_STYLES: Record<Phase, PhaseStyle> = {
   precondition: {
-    ink: '#6d5a9c',
-    wash: 'rgba(109, 90, 156, 0.10)',
+    ...PHASE_PALETTE.precondition,
     hatchWords: 'dots',
     drawHatch(ctx, s) {
       ctx.beginPath();
@@ -34,8 +34,7 @@ export const PHASE_STYLES: Record<Phase, PhaseStyle> = {
     },
   },
   cc: {
-    ink: '#b7791a',
-    wash: 'rgba(183, 121, 26, 0.10)',
+    ...PHASE_PALETTE.cc,
     hatchWords: 'rising diagonal lines',
     drawHatch(ctx, s) {
       line(ctx, 0, s, s, 0);
@@ -44,8 +43,7 @@ export const PHASE_STYLES: Record<Phase, PhaseStyle> = {
     },
   },
   cv: {
-    ink: '#23767d',
-    wash: 'rgba(35, 118, 125, 0.10)',
+    ...PHASE_PALETTE.cv,
     hatchWords: 'falling diagonal lines',
     drawHatch(ctx, s) {
       line(ctx, 0, 0, s, s);
@@ -54,16 +52,14 @@ export const PHASE_STYLES: Record<Phase, PhaseStyle> = {
     },
   },
   done: {
-    ink: '#4f7d33',
-    wash: 'rgba(79, 125, 51, 0.10)',
+    ...PHASE_PALETTE.done,
     hatchWords: 'horizontal lines',
     drawHatch(ctx, s) {
       line(ctx, 0, s / 2, s, s / 2);
     },
   },
   fault: {
-    ink: '#a8322a',
-    wash: 'rgba(168, 50, 42, 0.14)',
+    ...PHASE_PALETTE.fault,
     hatchWords: 'cross-hatch',
     drawHatch(ctx, s) {
       line(ctx, 0, s, s, 0);
@@ -71,8 +67,7 @@ export const PHASE_STYLES: Record<Phase, PhaseStyle> = {
     },
   },
   idle: {
-    ink: '#7d7a70',
-    wash: 'rgba(125, 122, 112, 0.08)',
+    ...PHASE_PALETTE.idle,
     hatchWords: 'vertical lines',
     drawHatch(ctx, s) {
       line(ctx, s / 2, 0, s / 2, s);

@@ -1,17 +1,28 @@
-/** A small pack-voltage trace for a Rack tile, drawn straight on a canvas (no chart library). */
+/** What a sparkline shows, for its caption: the value range and the time it covers. */
+export interface SparkBounds {
+  lo: number;
+  hi: number;
+  spanS: number;
+}
+
+/**
+ * A small pack-voltage trace for a Rack tile, drawn straight on a canvas (no chart library).
+ * `minSpan` keeps a few millivolts of noise from filling the height (as the Bench charts do).
+ */
 export function drawSparkline(
   canvas: HTMLCanvasElement,
   t: Float64Array,
   y: Float32Array | Float64Array,
   ink: string,
-): void {
+  minSpan = 0,
+): SparkBounds | null {
   const dpr = window.devicePixelRatio || 1;
   const cssW = canvas.clientWidth || 160;
   const cssH = canvas.clientHeight || 36;
   if (canvas.width !== Math.round(cssW * dpr)) canvas.width = Math.round(cssW * dpr);
   if (canvas.height !== Math.round(cssH * dpr)) canvas.height = Math.round(cssH * dpr);
   const ctx = canvas.getContext('2d');
-  if (!ctx) return;
+  if (!ctx) return null;
   ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
   ctx.clearRect(0, 0, cssW, cssH);
   let lo = Infinity;
@@ -22,10 +33,14 @@ export function drawSparkline(
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
-  if (!Number.isFinite(lo) || t.length < 2) return;
-  if (hi - lo < 1e-6) {
-    lo -= 0.05;
-    hi += 0.05;
+  if (!Number.isFinite(lo) || t.length < 2) return null;
+  const dataLo = lo;
+  const dataHi = hi;
+  const wanted = Math.max(minSpan, 1e-6);
+  if (hi - lo < wanted) {
+    const mid = (lo + hi) / 2;
+    lo = mid - Math.max(wanted, 0.1) / 2;
+    hi = mid + Math.max(wanted, 0.1) / 2;
   }
   const t0 = t[0];
   const span = Math.max(1e-9, t[t.length - 1] - t0);
@@ -45,4 +60,5 @@ export function drawSparkline(
     started = true;
   }
   ctx.stroke();
+  return { lo: dataLo, hi: dataHi, spanS: t[t.length - 1] - t0 };
 }

@@ -17,6 +17,7 @@ import {
   type Scale,
 } from 'chart.js';
 import { formatRunTime } from '../format';
+import { formatRunClock } from '@shared/engine/time-format';
 import { phaseBandsPlugin, type TimeMarker } from './phase-bands-plugin';
 import type { PlotField, PlotPoint, TrendSource } from './trend-source';
 
@@ -39,7 +40,7 @@ export interface QuantitySpec {
   right?: AxisSpec;
 }
 
-/** The Bench view's charts, organised by physical quantity (DESIGN "Names"). */
+/** The Bench view's charts, organised by physical quantity, each with its unit on the axis. */
 export const BENCH_QUANTITIES: QuantitySpec[] = [
   {
     id: 'vbat',
@@ -82,6 +83,17 @@ const MIN_SPAN_S = 30;
 const LEFT_AXIS_PX = 64;
 const RIGHT_AXIS_PX = 58;
 
+export interface CursorValue {
+  field: PlotField;
+  label: string;
+  unit: string;
+  value: number | null;
+}
+export interface CursorReadout {
+  t: number;
+  values: CursorValue[];
+}
+
 export interface PanelWindow {
   x0: number;
   x1: number;
@@ -110,6 +122,11 @@ export class TrendPanel {
   private lastDrawMs = -Infinity;
   private markers: TimeMarker[] = [];
   private pick: TimeMarker | null = null;
+  /** The time under the pointer: a crosshair on every chart and a readout of each value. */
+  private cursor: TimeMarker | null = null;
+  private readonly cursorListeners = new Set<(readout: CursorReadout | null) => void>();
+  /** Smallest visible span per quantity, so a few mA of noise never fill a whole chart. */
+  private minSpans: Partial<Record<PlotField, number>> = {};
   private readonly windowListeners = new Set<(w: PanelWindow) => void>();
 
   constructor(
@@ -182,6 +199,39 @@ export class TrendPanel {
     if (JSON.stringify(markers) === JSON.stringify(this.markers)) return;
     this.markers = markers;
     this.requestRedraw('view');
+  }
+
+  /** Minimum y span per field (in its unit); the axis is widened around the data to at least this. */
+  setMinSpans(spans: Partial<Record<PlotField, number>>): void {
+    this.minSpans = spans;
+    this.requestRedraw('view');
+  }
+
+  /** Called with the values at the pointer's time as it moves over a chart, null when it leaves. */
+  onCursor(cb: (readout: CursorReadout | null) => void): () => void {
+    this.cursorListeners.add(cb);
+    return () => this.cursorListeners.delete(cb);
+  }
+
+  /** Every plotted value at run time t (the nearest drawn point of each series). */
+  valuesAt(t: number): CursorReadout {
+    const values: CursorValue[] = [];
+    for (const entry of this.charts) {
+      const axes = [entry.spec.left, entry.spec.right];
+      let i = 0;
+      for (const axis of axes) {
+        for (const s of axis?.series ?? []) {
+          const data = entry.chart.data.datasets[i++]?.data ?? [];
+          values.push({
+            field: s.field,
+            label: s.label,
+            unit: axis!.title.match(/\[(.*)\]/)?.[1] ?? '',
+            value: nearestY(data, t, (this.x1 - this.x0) / 200),
+          });
+        }
+      }
+    }
+    return { t, values };
   }
 
   clearPick(): void {
@@ -297,9 +347,16 @@ export class TrendPanel {
     for (const axis of ['y', 'y2'] as const) {
       const scale = scales[axis];
       if (!scale) continue;
-      const [lo, hi] = paddedBounds(bounds[axis]);
+      const minSpan = Math.max(
+        0,
+        ...entry.fields.filter((f) => f.axis === axis).map((f) => this.minSpans[f.field] ?? 0),
+      );
+      const [lo, hi] = paddedBounds(widenToSpan(bounds[axis], minSpan));
       scale.min = lo;
       scale.max = hi;
+      // The drawn bounds, readable by tests and assistive tools without reaching into Chart.js.
+      entry.canvas.dataset[axis === 'y' ? 'yMin' : 'y2Min'] = String(lo);
+      entry.canvas.dataset[axis === 'y' ? 'yMax' : 'y2Max'] = String(hi);
     }
     chart.update('none');
   }
@@ -311,6 +368,7 @@ export class TrendPanel {
     box.className = 'trend-chart-box';
     const canvas = document.createElement('canvas');
     canvas.tabIndex = 0;
+    canvas.dataset.quantity = spec.id;
     canvas.setAttribute('role', 'img');
     const titles = [spec.left.title, spec.right?.title].filter(Boolean).join(' and ');
     canvas.setAttribute(
@@ -387,7 +445,11 @@ export class TrendPanel {
           autoSkipPadding: 24,
           font: tickFont,
           color: '#3b4038',
-          callback: (v: number | string) => formatRunTime(Number(v)),
+          // Steps under a minute need seconds, or neighbouring labels would read the same.
+          callback: (v: number | string, i: number, ticks: { value: number }[]) =>
+            ticks.length > 1 && ticks[1].value - ticks[0].value < 60
+              ? formatRunClock(Number(v))
+              : formatRunTime(Number(v)),
         },
         title: { display: showTimeLabels, text: 'Run time [h:mm]', font: tickFont, color: '#3b4038' },
       },
@@ -397,7 +459,8 @@ export class TrendPanel {
         grid,
         afterFit: fixWidth(LEFT_AXIS_PX),
         ticks: { font: tickFont, color: '#3b4038', maxTicksLimit: 5, includeBounds: false },
-        title: { display: true, text: spec.left.title, font: tickFont, color: '#3b4038' },
+        // The caption above names the quantity; the axis carries its unit, short enough for a low chart.
+        title: { display: true, text: unitOf(spec.left.title), font: tickFont, color: '#3b4038' },
       },
     };
     if (spec.right) {
@@ -407,7 +470,7 @@ export class TrendPanel {
         grid: { drawOnChartArea: false },
         afterFit: fixWidth(RIGHT_AXIS_PX),
         ticks: { font: tickFont, color: '#3b4038', maxTicksLimit: 5, includeBounds: false },
-        title: { display: true, text: spec.right.title, font: tickFont, color: '#3b4038' },
+        title: { display: true, text: unitOf(spec.right.title), font: tickFont, color: '#3b4038' },
       };
     }
     const chart = new Chart<'line', PlotPoint[]>(canvas, {
@@ -429,7 +492,11 @@ export class TrendPanel {
       plugins: [
         phaseBandsPlugin({
           spans: () => this.source?.spans() ?? [],
-          markers: () => (this.pick ? [...this.markers, this.pick] : this.markers),
+          markers: () => [
+            ...this.markers,
+            ...(this.pick ? [this.pick] : []),
+            ...(this.cursor ? [this.cursor] : []),
+          ],
         }),
       ],
     });
@@ -459,6 +526,7 @@ export class TrendPanel {
       canvas.setPointerCapture(e.pointerId);
     });
     canvas.addEventListener('pointermove', (e) => {
+      if (!drag) this.moveCursor(valueAt(e.clientX));
       if (!drag || e.pointerId !== drag.id) return;
       const dx = e.clientX - drag.startX;
       if (!drag.moved && Math.abs(dx) < 4) return;
@@ -475,6 +543,7 @@ export class TrendPanel {
       drag = null;
       if (wasClick && e.type === 'pointerup') this.setPick(valueAt(e.clientX));
     };
+    canvas.addEventListener('pointerleave', () => this.moveCursor(null));
     canvas.addEventListener('pointerup', end);
     canvas.addEventListener('pointercancel', end);
     canvas.addEventListener('keydown', (e) => {
@@ -504,6 +573,19 @@ export class TrendPanel {
     });
   }
 
+  private moveCursor(t: number | null): void {
+    if (t === null) {
+      if (!this.cursor) return;
+      this.cursor = null;
+      for (const cb of this.cursorListeners) cb(null);
+    } else {
+      this.cursor = { t, kind: 'cursor' };
+      for (const cb of this.cursorListeners) cb(this.valuesAt(t));
+    }
+    // Only the crosshair moved: draw the charts again without asking the source for new data.
+    for (const entry of this.charts) entry.chart.draw();
+  }
+
   private setPick(rawT: number): void {
     // A mark outside the run (the margin past its ends) means its nearest end.
     const extent = this.source?.extent();
@@ -521,6 +603,34 @@ const TIME_STEPS_S = [
 
 export function niceTimeStep(roughS: number): number {
   return TIME_STEPS_S.find((s) => s >= roughS) ?? Math.ceil(roughS / 604800) * 604800;
+}
+
+/** `Pack voltage [V]` -> `V`. */
+function unitOf(title: string): string {
+  return title.match(/\[(.*)\]/)?.[1] ?? title;
+}
+
+/** Widen [lo, hi] around its middle to at least minSpan (no change when it is already wider). */
+export function widenToSpan([lo, hi]: [number, number], minSpan: number): [number, number] {
+  if (!Number.isFinite(lo) || !Number.isFinite(hi) || !(minSpan > 0) || hi - lo >= minSpan) return [lo, hi];
+  const mid = (lo + hi) / 2;
+  return [mid - minSpan / 2, mid + minSpan / 2];
+}
+
+/** The y of the drawn point nearest to t (points sorted by x), or null beyond maxGap. */
+function nearestY(data: readonly PlotPoint[], t: number, maxGap: number): number | null {
+  if (data.length === 0) return null;
+  let lo = 0;
+  let hi = data.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (data[mid].x < t) lo = mid + 1;
+    else hi = mid;
+  }
+  const candidates = [data[lo], data[lo - 1]].filter((p): p is PlotPoint => p !== undefined);
+  let best: PlotPoint | null = null;
+  for (const p of candidates) if (!best || Math.abs(p.x - t) < Math.abs(best.x - t)) best = p;
+  return best && Math.abs(best.x - t) <= Math.max(maxGap, 1) ? best.y : null;
 }
 
 function paddedBounds([lo, hi]: [number, number]): [number, number] {

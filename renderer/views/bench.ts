@@ -22,6 +22,8 @@ import type { Navigator, View, ViewTarget } from '../router';
 import type { StationModel, Store } from '../store';
 import { errorText, readChecks, readEvents, readRun, type ChecksView, type RunListRow } from '../wire';
 import { renderAlarmList, type AlarmRow } from './alarm-list';
+import { minSpansFor, renderReadout } from './bench-readout';
+import { outlookRows } from './charge-outlook-view';
 import { phaseLegend } from './phase-legend';
 import { ChecksPanel } from './checks-panel';
 import { recordingBadge, sourceBadge } from './station-status';
@@ -63,6 +65,7 @@ export class BenchView implements View {
   });
   private readonly windowLabel = h('span', { class: 'window-label', 'aria-live': 'off' });
   private readonly pickBar = h('div', { class: 'pick-bar' });
+  private readonly cursorBar = h('div', { class: 'cursor-readout', 'aria-live': 'off' });
   private readonly legendSlot = h('div', { class: 'legend-slot' });
   private readonly followBtn: HTMLButtonElement;
   private readonly pauseBtn: HTMLButtonElement;
@@ -79,6 +82,12 @@ export class BenchView implements View {
     const chartsHost = h('div', { class: 'trend-host' });
     this.panel = new TrendPanel(chartsHost, BENCH_QUANTITIES, (t) => this.onPick(t));
     this.panel.onWindow((w) => this.onWindow(w));
+    this.panel.onCursor((r) =>
+      r
+        ? renderReadout(this.cursorBar, r, 'pointer')
+        : renderReadout(this.cursorBar, this.pickT === null ? null : this.panel.valuesAt(this.pickT), 'mark'),
+    );
+    renderReadout(this.cursorBar, null, 'pointer');
 
     this.followBtn = button('Follow live', () => this.panel.setFollow(!this.panel.window().follow), {
       class: 'btn toggle',
@@ -120,7 +129,15 @@ export class BenchView implements View {
       h('h3', { class: 'side-title' }, 'Board and checks'),
       this.checksPanel.el,
     );
-    const main = h('div', { class: 'bench-main' }, this.toolbar, this.legendSlot, this.pickBar, chartsHost);
+    const main = h(
+      'div',
+      { class: 'bench-main' },
+      this.toolbar,
+      this.legendSlot,
+      this.pickBar,
+      this.cursorBar,
+      chartsHost,
+    );
     root.append(this.head, h('div', { class: 'bench-body' }, side, main));
 
     store.on('stations', () => this.queueRender());
@@ -174,6 +191,7 @@ export class BenchView implements View {
     this.pickT = null;
     this.panel.setSource(new LiveStationSource(this.api, model));
     this.panel.showSpan(this.activeSpan);
+    this.panel.setMinSpans(minSpansFor(model.view.profile));
     this.legendSlot.replaceChildren(phaseLegend(model.view.profile.chemistry));
     this.queueRender();
     // The latest checks at once; the next ones arrive as pushes.
@@ -202,6 +220,7 @@ export class BenchView implements View {
       this.panel.setSource(source);
       this.panel.showSpan(null);
       this.panel.setFollow(false);
+      this.panel.setMinSpans(minSpansFor(null));
       this.legendSlot.replaceChildren(phaseLegend(run.chemistry));
       this.queueRender();
     } catch (err) {
@@ -218,6 +237,7 @@ export class BenchView implements View {
   private onPick(t: number): void {
     this.pickT = t;
     this.renderPickBar();
+    renderReadout(this.cursorBar, this.panel.valuesAt(t), 'mark');
   }
 
   private onWindow(w: PanelWindow): void {
@@ -400,10 +420,7 @@ export class BenchView implements View {
       ...readout('Source', formatNumber(last?.vinV, 2, 'V')),
     );
     const m = state.metrics;
-    const eta =
-      m.etaS === null
-        ? '–'
-        : `${formatDuration(m.etaS)} (CC ${formatDuration(m.etaCcS)} + CV ${formatDuration(m.etaCvS)})`;
+    const outlook = outlookRows(model);
     const mppt =
       profile.inputSetpointV === null
         ? 'no set point in the profile'
@@ -413,8 +430,9 @@ export class BenchView implements View {
       ...metric('Energy in', formatNumber(m.wh, 2, 'Wh')),
       ...metric('From source', formatNumber(m.sourceWh, 2, 'Wh')),
       ...metric('Efficiency', formatPercent(m.efficiency, 1)),
-      ...metric('State of charge', m.socPct === null ? '–' : `${m.socPct.toFixed(0)} %`),
-      ...metric('Time to full', eta),
+      ...metric('Charge level (est.)', outlook.level),
+      ...metric('Time to full (est.)', outlook.full),
+      ...metric('Next', outlook.next),
       ...metric(
         'Internal resistance',
         m.internalResistanceOhm === null ? '–' : `${(m.internalResistanceOhm * 1000).toFixed(0)} mΩ`,
@@ -466,7 +484,13 @@ export class BenchView implements View {
     this.panel.setMarkers(alarmMarkers(events));
   }
 
+  private pickKey: string | null = null;
+
   private renderPickBar(): void {
+    // Redrawn only when the mark or the mode changes, so its buttons stay put under a click.
+    const key = JSON.stringify([this.pickT, this.mode.kind]);
+    if (key === this.pickKey) return;
+    this.pickKey = key;
     if (this.pickT === null) {
       this.pickBar.replaceChildren(
         h(
@@ -481,6 +505,14 @@ export class BenchView implements View {
     this.pickBar.replaceChildren(
       h('span', { class: 'pick-text' }, `Marked ${formatRunTime(t)}`),
       button('Diagnose here', () => this.openDiagnosis(t), { class: 'btn btn-small', id: 'diagnose-here' }),
+      ...(this.mode.kind === 'live'
+        ? [
+            button('Lines around here', () => this.openLinesAround(t), {
+              class: 'btn btn-small',
+              id: 'lines-here',
+            }),
+          ]
+        : []),
       button(
         'Clear mark',
         () => {
@@ -491,6 +523,15 @@ export class BenchView implements View {
         { class: 'btn btn-small btn-quiet' },
       ),
     );
+  }
+
+  /** The Line feed at the raw lines received around run time t (live stations only). */
+  private openLinesAround(t: number): void {
+    const model = this.liveModel();
+    if (!model) return;
+    // Counted in samples back from the newest: right whatever the clocks (a sped-up simulator too).
+    const samplesBack = model.series.samplesAfterNearest(t);
+    this.nav.open({ view: 'feed', stationId: model.view.id, samplesBack, aroundLabel: formatDuration(t) });
   }
 
   private openDiagnosis(atT: number): void {

@@ -60,6 +60,14 @@ export class ConnectView implements View {
     maxlength: 120,
   });
   private readonly applySelect = h('select', { id: 'apply-station' });
+  /** A path typed by hand: a pty, a /dev/serial/by-id/ link, a port the list does not show. */
+  private readonly typedPath = h('input', {
+    id: 'serial-path',
+    type: 'text',
+    autocomplete: 'off',
+    spellcheck: 'false',
+    placeholder: '/dev/pts/7 or /dev/serial/by-id/usb-…',
+  });
   private readonly baud = h('select', { id: 'serial-baud' });
   private readonly dataBits = h('select', { id: 'serial-databits' });
   private readonly parity = h('select', { id: 'serial-parity' });
@@ -128,6 +136,17 @@ export class ConnectView implements View {
         button('Refresh ports', () => void this.loadPorts(), { class: 'btn' }),
       ),
       this.portsHost,
+      h(
+        'div',
+        { class: 'form-row typed-path' },
+        h('label', { for: 'serial-path' }, 'Or type a path'),
+        this.typedPath,
+        h(
+          'span',
+          { class: 'quiet' },
+          'A typed path is used instead of the list: a pty of a test rig, or a stable /dev/serial/by-id/ name.',
+        ),
+      ),
       h(
         'div',
         { class: 'serial-settings' },
@@ -314,7 +333,10 @@ export class ConnectView implements View {
           value: p.path,
           checked: this.selectedPort?.path === p.path,
         });
-        radio.addEventListener('change', () => (this.selectedPort = p));
+        radio.addEventListener('change', () => {
+          this.selectedPort = p;
+          this.typedPath.value = '';
+        });
         body.append(
           h(
             'tr',
@@ -482,8 +504,12 @@ export class ConnectView implements View {
       if (!tcp) return `Write the address as tcp://HOST:PORT (got "${this.tcpAddress.value}").`;
       return tcp;
     }
-    if (!this.selectedPort) return 'Pick a serial port first (press Refresh ports if the list is empty).';
-    const p = this.selectedPort;
+    const typed = this.typedPath.value.trim();
+    if (typed && !typed.startsWith('/') && !/^COM\d+$/i.test(typed))
+      return `"${typed}" is not a port path: type an absolute path such as /dev/ttyUSB0 or /dev/serial/by-id/… (a network port goes under TCP)`;
+    if (!typed && !this.selectedPort)
+      return 'Pick a serial port, or type its path (press Refresh ports if the list is empty).';
+    const p: PortRow = typed ? { path: typed } : this.selectedPort!;
     const config: Record<string, unknown> = {
       kind: 'serial',
       path: p.path,

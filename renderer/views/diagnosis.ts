@@ -166,7 +166,7 @@ export class DiagnosisView implements View {
       this.causes.replaceChildren(h('p', {}, 'No cause stands out at this time.'));
       return;
     }
-    const list = h('ol', { class: 'cause-list', 'aria-label': 'Causes, most likely first' });
+    const list = h('ol', { class: 'cause-list', 'aria-label': 'Causes, highest confidence first' });
     d.causes.forEach((c, i) => {
       const pct = Math.round(Math.max(0, Math.min(1, c.confidence)) * 100);
       const fill = h('span', { class: 'confidence-fill' });

@@ -19,6 +19,9 @@ const ENDINGS: { label: string; value: '\n' | '\r\n' | '\r' | '' }[] = [
   { label: 'none', value: '' },
 ];
 
+/** Lines either side of the one at a marked time that are highlighted with it. */
+const AROUND_ROWS = 5;
+
 const MARKERS: Record<FeedRow['kind'], string> = {
   sample: '',
   header: 'HEAD',
@@ -54,6 +57,7 @@ export class FeedView implements View {
     id: 'feed-pause',
   });
   private readonly counts = h('span', { class: 'feed-counts', role: 'status' });
+  private readonly aroundNote = h('p', { class: 'feed-around-note', role: 'status', hidden: true });
   private readonly sendInput = h('input', {
     id: 'feed-send-text',
     type: 'text',
@@ -101,6 +105,7 @@ export class FeedView implements View {
         this.pauseBtn,
         this.counts,
       ),
+      this.aroundNote,
       h('div', { class: 'feed-scroller', tabindex: '0', 'aria-label': 'Line feed lines' }, this.list),
       form,
     );
@@ -135,11 +140,45 @@ export class FeedView implements View {
     this.visible = true;
     this.fillSelect();
     const wanted = target.view === 'feed' ? target.stationId : undefined;
+    this.aroundNote.hidden = true;
     if (wanted) this.setStation(wanted);
     else if (!this.stationId || !this.store.stations.has(this.stationId)) {
       const first = this.store.sortedStations()[0];
       if (first) this.setStation(first.view.id);
     } else this.rebuild();
+    if (target.view === 'feed' && target.samplesBack !== undefined)
+      this.showAround(target.samplesBack, target.aroundLabel ?? '');
+  }
+
+  /**
+   * From a time marked on the Bench charts: pause the feed (so the lines stay put), and scroll
+   * to the sample line `samplesBack` samples before the newest, with AROUND_ROWS lines either
+   * side highlighted.
+   */
+  private showAround(samplesBack: number, label: string): void {
+    if (!this.paused) this.togglePause();
+    if (this.filter) {
+      this.filter = '';
+      this.filterInput.value = '';
+      this.rebuild();
+    }
+    const rows = [...this.list.querySelectorAll<HTMLLIElement>('li.feed-row')];
+    for (const li of rows) li.classList.remove('feed-around', 'feed-focus');
+    const samples = rows.filter((li) => li.classList.contains('kind-sample'));
+    const target = samples[samples.length - 1 - samplesBack];
+    this.aroundNote.hidden = false;
+    if (!target) {
+      this.aroundNote.textContent = `The lines of ${label} are no longer in the Line feed (it keeps the last ${LINE_FEED_LIMIT} lines). A recorded run keeps them all: open it from the Runs view.`;
+      return;
+    }
+    const at = rows.indexOf(target);
+    for (let i = Math.max(0, at - AROUND_ROWS); i <= Math.min(rows.length - 1, at + AROUND_ROWS); i++)
+      rows[i].classList.add('feed-around');
+    target.classList.add('feed-focus');
+    target.tabIndex = -1;
+    target.scrollIntoView({ block: 'center' });
+    target.focus({ preventScroll: true });
+    this.aroundNote.textContent = `Lines around ${label} (received ${formatTimeOfDay(Number(target.dataset.rx))}), highlighted; the feed is paused so they stay put. Resume to follow new lines.`;
   }
 
   hide(): void {
@@ -239,7 +278,7 @@ export class FeedView implements View {
     const marker = MARKERS[row.kind];
     const li = h(
       'li',
-      { class: `feed-row kind-${row.kind}` },
+      { class: `feed-row kind-${row.kind}`, 'data-rx': row.rxS },
       h('span', { class: 'feed-time' }, formatTimeOfDay(row.rxS)),
     );
     li.append(h('span', { class: 'feed-marker' }, marker));

@@ -3,11 +3,13 @@
  * mapping, turned into profile JSON (docs/profile.md). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
+import { CHEMISTRY_DEFAULTS } from '@shared/chemistry/defaults';
 import { gardenSensorPack } from '@shared/chemistry/demo-profiles';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import { CHEMISTRIES } from '@shared/chemistry/types';
 import type { CanonicalField } from '@shared/telemetry/types';
 import { h } from '../dom';
+import { labelMessage, profileWarnings, timerHint } from './profile-checks';
 
 interface NumberField {
   key: string;
@@ -188,10 +190,50 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     'lithium and lead-acid charging can start fires and injure. Take every limit from the cell maker’s datasheet, not from these defaults; follow local electrical and fire codes, charge on a non-flammable surface, and never leave a charging pack unattended without independent protection (fuse, thermal cut-off, battery management).',
   );
 
+  const warnBox = h('div', {
+    class: 'profile-warnings',
+    id: `${idPrefix}-warnings`,
+    role: 'status',
+    hidden: true,
+  });
+  const timerNote = h('p', { class: 'quiet timer-hint', id: `${idPrefix}-timer-hint` });
+  const fieldLabel = (key: string): string | null => {
+    const f = [...BASICS, ...LIMITS].find((x) => x.key === key);
+    if (f) return f.label;
+    if (key === 'tempWindowC') return 'Charge window';
+    if (key === 'name') return 'Profile name';
+    if (key === 'chemistry') return 'Chemistry';
+    const m = /^fields\.(\w+)(?:\.(key|unit))?$/.exec(key);
+    if (m) {
+      const words = MAPPED_FIELDS.find((x) => x.field === m[1])?.words ?? m[1];
+      return m[2] === 'unit' ? `Unit of ${words}` : `Device key for ${words}`;
+    }
+    return null;
+  };
+  const refreshChecks = () => {
+    const typed = form.read();
+    const warnings = profileWarnings(typed);
+    warnBox.hidden = warnings.length === 0;
+    warnBox.replaceChildren(
+      ...warnings.map((w) => h('p', { class: 'profile-warning' }, h('strong', {}, '▲ Check this: '), w)),
+      ...(warnings.length
+        ? [
+            h(
+              'p',
+              { class: 'quiet' },
+              'These values are allowed, but unusual. Charging lithium and lead-acid batteries can start fires and injure: take every limit from the cell maker’s datasheet and follow local electrical codes.',
+            ),
+          ]
+        : []),
+    );
+    timerNote.textContent = timerHint(typed);
+  };
+
   const root = h(
     'div',
     { class: 'profile-form' },
     summary,
+    warnBox,
     h('div', { class: 'form-row' }, h('label', { for: presetId }, 'Preset'), preset),
     h('div', { class: 'form-row' }, h('label', { for: nameId }, 'Profile name'), name, errors.get('name')!),
     h(
@@ -208,6 +250,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       h('legend', {}, 'Limits (empty = chemistry default)'),
       caution,
       ...LIMITS.map(numberRow),
+      timerNote,
     ),
     h(
       'fieldset',
@@ -233,7 +276,10 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     ),
   );
 
-  const changed = () => changeListeners.forEach((cb) => cb());
+  const changed = () => {
+    refreshChecks();
+    changeListeners.forEach((cb) => cb());
+  };
   root.addEventListener('input', (e) => {
     if (e.target !== preset) changed();
   });
@@ -259,7 +305,14 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       }
       const lo = value(inputs.get('tempWindowC.0')!);
       const hi = value(inputs.get('tempWindowC.1')!);
-      if (lo !== undefined || hi !== undefined) out.tempWindowC = [lo ?? null, hi ?? null];
+      // One bound typed: the other is the chemistry's default ("empty = chemistry default").
+      if (lo !== undefined || hi !== undefined) {
+        const def = CHEMISTRY_DEFAULTS[chemistry.value as keyof typeof CHEMISTRY_DEFAULTS]?.tempWindowC ?? [
+          null,
+          null,
+        ];
+        out.tempWindowC = [lo ?? def[0], hi ?? def[1]];
+      }
       const fields: Record<string, Record<string, unknown>> = {};
       for (const { field } of MAPPED_FIELDS) {
         const key = inputs.get(`fields.${field}.key`)!.value.trim();
@@ -293,6 +346,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         if (k && m?.key) k.value = m.key;
         if (u && m?.unit) u.value = m.unit;
       }
+      refreshChecks();
     },
     showError(key, message) {
       for (const [k, el] of errors) {
@@ -306,7 +360,9 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         return;
       }
       summary.hidden = false;
-      summary.textContent = `Profile refused: ${message}`;
+      const worded = labelMessage(key, message, fieldLabel);
+      summary.textContent = `Profile refused: ${worded}`;
+      message = worded;
       if (!key) return;
       // The most specific field the key names: `fields.vbat.unit`, then `fields.vbat`, ...
       const parts = key.split('.');
@@ -337,6 +393,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       changeListeners.push(cb);
     },
   };
+  refreshChecks();
   return form;
 }
 

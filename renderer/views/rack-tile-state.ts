@@ -84,3 +84,11 @@ export function heldOrder(previous: readonly string[], sorted: readonly string[]
   const keptSet = new Set(kept);
   return [...kept, ...sorted.filter((id) => !keptSet.has(id))];
 }
+
+/** The words under a tile's sparkline: what it shows, over how long, between which values. */
+export function sparkCaption(bounds: { lo: number; hi: number; spanS: number } | null): string {
+  if (!bounds) return 'Pack voltage: waiting for data';
+  const min = Math.max(1, Math.round(bounds.spanS / 60));
+  const over = min < 120 ? `${min} min` : `${Math.round(min / 60)} h`;
+  return `Pack voltage, last ${over}: ${bounds.lo.toFixed(2)}–${bounds.hi.toFixed(2)} V`;
+}

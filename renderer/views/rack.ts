@@ -11,7 +11,14 @@ import { button, h } from '../dom';
 import { formatNumber, phaseWords } from '../format';
 import type { Navigator, View } from '../router';
 import type { StationModel, Store } from '../store';
-import { heldOrder, tileAlarmLine, tileAlarmState, tileAlarmWords, tileClassName } from './rack-tile-state';
+import {
+  heldOrder,
+  sparkCaption,
+  tileAlarmLine,
+  tileAlarmState,
+  tileAlarmWords,
+  tileClassName,
+} from './rack-tile-state';
 import {
   filterRows,
   groupByBench,
@@ -44,7 +51,7 @@ export class RackView implements View {
   private descending = true;
   private readonly tiles = new Map<
     string,
-    { tile: HTMLButtonElement; spark: HTMLCanvasElement; body: HTMLElement }
+    { tile: HTMLButtonElement; spark: HTMLCanvasElement; sparkLabel: HTMLElement; body: HTMLElement }
   >();
 
   constructor(
@@ -206,8 +213,9 @@ export class RackView implements View {
           tile.addEventListener('click', () => this.nav.open({ view: 'bench', stationId: model.view.id }));
           const body = h('span', { class: 'tile-body' });
           const spark = h('canvas', { class: 'tile-spark', 'aria-hidden': 'true' });
-          tile.append(body, spark);
-          entry = { tile, spark, body };
+          const sparkLabel = h('span', { class: 'tile-spark-label' });
+          tile.append(body, spark, sparkLabel);
+          entry = { tile, spark, sparkLabel, body };
           this.tiles.set(model.view.id, entry);
         }
         this.fillTile(entry, model);
@@ -235,7 +243,10 @@ export class RackView implements View {
     for (const model of drawn) {
       const entry = this.tiles.get(model.view.id)!;
       const { x, y } = model.spark.toArrays();
-      drawSparkline(entry.spark, x, y, '#1f3f6e');
+      const { profile } = model.view;
+      // 1 % of the pack's regulation voltage at least, as on the Bench charts.
+      const minSpanV = 0.01 * profile.regulationVPerCell * profile.cells;
+      entry.sparkLabel.textContent = sparkCaption(drawSparkline(entry.spark, x, y, '#1f3f6e', minSpanV));
     }
   }
 

@@ -8,6 +8,9 @@ import { button, h } from '../dom';
 import { formatClock, formatDuration, formatNumber } from '../format';
 import type { Navigator, View } from '../router';
 import { errorText, readRuns, readStation, type RunListRow } from '../wire';
+import { filterRuns, type RunFilter } from './run-filter';
+import { RunOverlay, type OverlayAlign } from './run-overlay';
+import { packKeys, renderPackHistory } from './pack-history';
 
 const REPLAY_SPEEDS: { label: string; value: number | 'max' }[] = [
   { label: '1× (as recorded)', value: 1 },
@@ -45,6 +48,19 @@ export class RunsView implements View {
     placeholder: 'board id contains…',
   });
   private runs: RunListRow[] = [];
+  /** Runs ticked for the overlay. */
+  private readonly compare = new Set<number>();
+  private readonly overlay: RunOverlay;
+  private readonly alignSelect = h('select', { id: 'overlay-align' });
+  private readonly overlayBtn: HTMLButtonElement;
+  private readonly packSelect = h('select', { id: 'pack-history' });
+  private readonly packHost = h('div', { class: 'pack-history-host' });
+  private filter: RunFilter = { text: '', from: '', to: '', ended: '' };
+  private readonly filterBar = h('div', {
+    class: 'runs-filter',
+    role: 'search',
+    'aria-label': 'Search and filter runs',
+  });
   private confirming: number | null = null;
   private filtersWired = false;
 
@@ -54,6 +70,17 @@ export class RunsView implements View {
     private readonly nav: Navigator,
   ) {
     REPLAY_SPEEDS.forEach((s, i) => this.speed.append(h('option', { value: String(i) }, s.label)));
+    this.overlay = new RunOverlay(api);
+    this.alignSelect.append(
+      h('option', { value: 'start' }, 'aligned at the start'),
+      h('option', { value: 'cv' }, 'aligned at the cc→cv change'),
+    );
+    this.overlayBtn = button('Overlay ticked runs', () => void this.showOverlay(), {
+      class: 'btn',
+      id: 'overlay-runs',
+    });
+    this.overlayBtn.disabled = true;
+    this.packSelect.addEventListener('change', () => this.renderPackChoices());
     root.append(
       h(
         'div',
@@ -77,8 +104,62 @@ export class RunsView implements View {
         ),
         this.batchForm(),
       ),
+      this.filterBar,
+      h(
+        'div',
+        { class: 'runs-tools' },
+        this.overlayBtn,
+        h('label', { for: 'overlay-align', class: 'field-label' }, 'Overlay'),
+        this.alignSelect,
+      ),
       this.status,
       this.tableHost,
+      this.overlay.root,
+      h(
+        'section',
+        { class: 'pack-history-section', 'aria-labelledby': 'pack-history-title' },
+        h('h3', { id: 'pack-history-title' }, 'Pack history'),
+        h('label', { for: 'pack-history', class: 'field-label' }, 'Pack (board id, or profile name)'),
+        this.packSelect,
+        this.packHost,
+      ),
+    );
+    this.buildFilterBar();
+  }
+
+  private buildFilterBar(): void {
+    const text = h('input', {
+      id: 'runs-search',
+      type: 'search',
+      placeholder: 'station, profile, board, chemistry, alarm…',
+      autocomplete: 'off',
+    });
+    const from = h('input', { id: 'runs-from', type: 'date' });
+    const to = h('input', { id: 'runs-to', type: 'date' });
+    const ended = h('select', { id: 'runs-ended' });
+    for (const [value, words] of [
+      ['', 'any end'],
+      ['completed', 'completed'],
+      ['stopped', 'stopped'],
+      ['interrupted', 'interrupted'],
+      ['profile-changed', 'profile changed'],
+      ['recording', 'still recording'],
+    ])
+      ended.append(h('option', { value }, words));
+    const apply = () => {
+      this.filter = { text: text.value, from: from.value, to: to.value, ended: ended.value };
+      this.renderTable();
+    };
+    for (const el of [text, from, to, ended]) el.addEventListener('input', apply);
+    this.filterBar.append(
+      h('label', { for: 'runs-search', class: 'field-label' }, 'Search'),
+      text,
+      h('label', { for: 'runs-from', class: 'field-label' }, 'From'),
+      from,
+      h('label', { for: 'runs-to', class: 'field-label' }, 'To'),
+      to,
+      h('label', { for: 'runs-ended', class: 'field-label' }, 'End'),
+      ended,
     );
   }
 
@@ -99,11 +180,25 @@ export class RunsView implements View {
     try {
       this.runs = readRuns(await this.api.request('runs.list', {})).sort((a, b) => b.startRxS - a.startRxS);
       this.renderTable();
+      this.renderPackChoices();
     } catch (err) {
       this.tableHost.replaceChildren(
         h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`),
       );
     }
+  }
+
+  private renderPackChoices(): void {
+    const keep = this.packSelect.value;
+    const keys = packKeys(this.runs);
+    this.packSelect.replaceChildren(
+      h('option', { value: '' }, keys.length ? 'Pick a pack…' : 'No pack has two runs yet'),
+      ...keys.map((k) =>
+        h('option', { value: k.key, selected: k.key === keep }, `${k.key} (${k.count} runs)`),
+      ),
+    );
+    if (keep && keys.some((k) => k.key === keep)) renderPackHistory(this.packHost, this.runs, keep);
+    else this.packHost.replaceChildren();
   }
 
   private renderTable(): void {
@@ -116,6 +211,7 @@ export class RunsView implements View {
     const head = h(
       'tr',
       {},
+      h('th', { scope: 'col' }, 'Compare'),
       ...[
         'Run',
         'Station',
@@ -132,10 +228,12 @@ export class RunsView implements View {
       ].map((c) => h('th', { scope: 'col' }, c)),
     );
     const body = h('tbody');
-    const shown = this.runs.filter((run) => this.passesFilters(run));
+    const shown = filterRuns(this.runs, this.filter).filter((run) => this.passesFilters(run));
     for (const run of shown) body.append(this.row(run));
     if (shown.length === 0)
-      body.append(h('tr', {}, h('td', { colspan: '12', class: 'quiet' }, 'No run matches the filters.')));
+      body.append(
+        h('tr', {}, h('td', { colspan: '13', class: 'quiet' }, 'No run matches the search and filters.')),
+      );
     this.tableHost.replaceChildren(
       h(
         'table',
@@ -185,6 +283,10 @@ export class RunsView implements View {
           class: 'btn btn-small',
           'aria-label': label('Save the Run report of'),
         }),
+        button('PDF', () => void this.reportPdf(run), {
+          class: 'btn btn-small',
+          'aria-label': label('Save the Run report as PDF of'),
+        }),
         button(
           'Delete…',
           () => {
@@ -197,9 +299,22 @@ export class RunsView implements View {
         ),
       );
     }
+    const tick = h('input', {
+      type: 'checkbox',
+      class: 'compare-box',
+      'aria-label': `Compare run ${run.id}`,
+      checked: this.compare.has(run.id),
+    });
+    tick.addEventListener('change', () => {
+      if (tick.checked) this.compare.add(run.id);
+      else this.compare.delete(run.id);
+      this.overlayBtn.disabled = this.compare.size < 2;
+      this.overlayBtn.textContent = `Overlay ticked runs (${this.compare.size})`;
+    });
     return h(
       'tr',
       { 'data-run': run.id },
+      h('td', {}, tick),
       h('th', { scope: 'row' }, String(run.id)),
       h('td', {}, run.stationLabel || run.stationId),
       h('td', { class: 'run-board' }, run.boardId ?? '–'),
@@ -217,6 +332,12 @@ export class RunsView implements View {
       h('td', { class: 'num' }, `${run.lines}${run.rejected ? ` (${run.rejected} rejected)` : ''}`),
       h('td', {}, actions),
     );
+  }
+
+  private async showOverlay(): Promise<void> {
+    const runs = this.runs.filter((r) => this.compare.has(r.id)).sort((a, b) => a.startRxS - b.startRxS);
+    await this.overlay.show(runs, this.alignSelect.value as OverlayAlign);
+    this.overlay.root.scrollIntoView({ block: 'start' });
   }
 
   /** A burn-in batch: every live station ends its run and begins a run of the batch at once. */
@@ -309,6 +430,15 @@ export class RunsView implements View {
     );
   }
 
+  private async reportPdf(run: RunListRow): Promise<void> {
+    await this.deliver(
+      run,
+      'Run report PDF',
+      () => this.api.request('runs.report', { runId: run.id, pdf: true }),
+      `taperline-run-${run.id}-report.pdf`,
+    );
+  }
+
   /** Web mode answers with a URL (offered as a download link); Electron saves and says where. */
   private async deliver(
     run: RunListRow,
@@ -327,7 +457,7 @@ export class RunsView implements View {
             href,
             download: fileName,
             class: 'download-link',
-            id: what === 'CSV' ? 'csv-link' : 'report-link',
+            id: what === 'CSV' ? 'csv-link' : what === 'Run report PDF' ? 'pdf-link' : 'report-link',
           },
           `Download the ${what} of run ${run.id}`,
         );

@@ -34,8 +34,9 @@ export function recordingBadge(view: StationView): HTMLElement {
       { class: 'rec-state', 'data-state': 'recording' },
       view.runId !== null ? `● Recording run ${view.runId}` : 'Not recording',
     );
-  // The station manager words a deliberate "no database" as "not recording: …": not a failure.
-  if (problem?.startsWith('not recording'))
+  // The station manager words a deliberate "no database" as "not recording: …" and a replay as
+  // "not recorded (…)": neither is a failure.
+  if (problem?.startsWith('not recording') || problem?.startsWith('not recorded'))
     return h(
       'span',
       { class: 'rec-state', 'data-state': 'off' },

@@ -96,6 +96,12 @@ test('an alarm reaches a person on every view', { timeout: 300_000 }, async (t) 
     await page.locator(`#view-rack .tile[data-station="${stationId}"]`).waitFor();
     await page.waitForTimeout(700);
     assert.deepEqual(await order(), [healthyId, stationId]);
+    // Each sparkline says what it shows (Rack tiles are read from across the room).
+    assert.match(
+      (await page.locator(`#view-rack .tile[data-station="${healthyId}"] .tile-spark-label`).textContent()) ??
+        '',
+      /^Pack voltage, last \d+ (min|h): \d+\.\d\d–\d+\.\d\d V$/,
+    );
     await page.locator(`#view-rack .tile[data-station="${healthyId}"]`).hover();
     // The alarm raises the overheating station's rank; the order must not change under the pointer.
     await page.waitForFunction(

@@ -90,4 +90,24 @@ test('ended scenarios and replays are not red; delete asks safely', { timeout: 2
     await page.locator('.runs-status', { hasText: 'Run 1 was kept.' }).waitFor();
     assert.equal(await page.locator('tr[data-run="1"]').count(), 1);
   });
+
+  await t.test('search finds runs by what they say; the Run report as PDF from the app', async () => {
+    await page.locator('#runs-search').fill('no-such-board');
+    await page.locator('td', { hasText: 'No run matches' }).waitFor();
+    await page.locator('#runs-search').fill('garden-sensor');
+    await page.locator('tr[data-run="1"]').waitFor();
+    await page.locator('#runs-ended').selectOption('interrupted');
+    assert.equal(await page.locator('tr[data-run="1"]').count(), 0);
+    await page.locator('#runs-ended').selectOption('');
+    await page.locator('tr[data-run="1"] button', { hasText: 'PDF' }).click();
+    const link = page.locator('#pdf-link');
+    await link.waitFor({ timeout: 90_000 });
+    const href = (await link.getAttribute('href')) ?? '';
+    const bytes = await page.evaluate(async (u) => {
+      const res = await fetch(u);
+      return [...new Uint8Array(await res.arrayBuffer()).slice(0, 5)];
+    }, href);
+    assert.equal(String.fromCharCode(...bytes), '%PDF-');
+    await screenshot(page, 'runs-search-pdf');
+  });
 });

@@ -140,7 +140,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
       );
   });
 
-  await t.test('a bad profile value is refused with the message that names the key', async () => {
+  await t.test('a bad profile value is refused, the message naming the field by its label', async () => {
     await openViewByKey(page, 'connect');
     const field = page.locator('#profile-chargeCurrentA');
     await field.fill('-2');
@@ -148,7 +148,7 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     await page.waitForFunction(
       () => (document.querySelector('#profile-chargeCurrentA-err')?.textContent ?? '') !== '',
     );
-    // The message is the backend's own refusal, word for word (shared/chemistry/profile).
+    // The backend's own refusal (shared/chemistry/profile), with the key replaced by the form's label.
     const expected = parseProfile({
       name: 'garden-sensor 3S Li-ion',
       chemistry: 'li-ion',
@@ -162,9 +162,12 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
     assert.equal(expected.ok, false);
     if (expected.ok) return;
     assert.equal(expected.key, 'chargeCurrentA');
-    assert.equal(await error.textContent(), expected.error);
+    assert.equal(await error.textContent(), expected.error.replace(/^chargeCurrentA:/, 'Charge current:'));
     assert.equal(await field.getAttribute('aria-invalid'), 'true');
-    assert.match((await page.locator('#profile-error').textContent()) ?? '', /chargeCurrentA/);
+    assert.match(
+      (await page.locator('#profile-error').textContent()) ?? '',
+      /^Profile refused: Charge current:/,
+    );
     await page.locator('#add-station').click();
     await page.waitForFunction(() =>
       /Not added/.test(document.querySelector('#view-connect .connect-status')?.textContent ?? ''),
@@ -205,7 +208,14 @@ test('dashboard with a live simulated station', { timeout: 240_000 }, async (t) 
       string
     >[];
     assert.ok(rows.length > 10, `CSV rows: ${rows.length}`);
-    assert.ok('vbat (V)' in rows[0] && 't (s)' in rows[0], `CSV columns: ${Object.keys(rows[0]).join(', ')}`);
+    assert.ok(
+      'vbat (V)' in rows[0] && 't (s since start)' in rows[0],
+      `CSV columns: ${Object.keys(rows[0]).join(', ')}`,
+    );
+    // ISO 8601 with the zone offset, and the same instant as the receive time in seconds.
+    const iso = String(rows[0]['time (ISO 8601)']);
+    assert.match(iso, /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}[+-]\d\d:\d\d$/);
+    assert.ok(Math.abs(Date.parse(iso) / 1000 - Number(rows[0]['rx time (s since 1970)'])) < 0.001);
     // A 3S Li-ion pack between precondition and full charge: 3 x 2.5..4.3 V/cell
     // (Battery University BU-409: regulation 4.20 V/cell; ElectroDragon wiki: precondition below about 3.0 V/cell).
     const vbat = rows.map((r) => Number(r['vbat (V)'])).filter(Number.isFinite);

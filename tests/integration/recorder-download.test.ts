@@ -117,7 +117,7 @@ test(
         Record<string, string>
       >;
       assert.equal(rows.length, SAMPLES);
-      assert.equal(Number(rows[SAMPLES - 1]['t (s)']), SAMPLES - 1);
+      assert.equal(Number(rows[SAMPLES - 1]['t (s since start)']), SAMPLES - 1);
       await until('the whole export settles', () => outcomes.length === 2);
       assert.equal(outcomes[1], 'resolved');
       await new Promise((r) => setTimeout(r, 50));

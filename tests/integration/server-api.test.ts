@@ -153,7 +153,7 @@ test('station snapshots are throttled to MAX_PUSHES_PER_SECOND per station', asy
   const elapsedS = (Date.now() - startMs) / 1000;
   const snapshots = a.pushes.slice(before).filter((p) => p.push === 'station').length;
   assert.ok(snapshots >= 1, 'at least one snapshot');
-  // DESIGN: live redraws and snapshots at most MAX_PUSHES_PER_SECOND per station (+1 for the window edge).
+  // Design rule: live redraws and snapshots at most MAX_PUSHES_PER_SECOND per station (+1 for the window edge).
   assert.ok(
     snapshots <= Math.ceil(elapsedS * MAX_PUSHES_PER_SECOND) + 1,
     `${snapshots} snapshots in ${elapsedS} s`,
