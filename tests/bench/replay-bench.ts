@@ -5,7 +5,10 @@
  *      through replay's own loop (main/cli/replay-run.ts: frame, parse, engine, NDJSON events
  *      written to /dev/null), and (b') the same lines pushed as text (the path of live ports),
  *      all measured in this run, with their ratios;
- *  (c) peak resident memory of `taperline replay --events` on a 10,000,000-line file.
+ *  (c) peak resident memory of `taperline replay --events` on a 10,000,000-line file;
+ *  (d) where replay's time goes: the same lines held in memory and run through framing alone,
+ *      the parser alone, and parser + pipeline (plausibility, time base, engine), as CPU
+ *      nanoseconds per line beside replay's and readline's own.
  * Usage: node --import tsx tests/bench/replay-bench.ts [--quick]   (--quick skips (c))
  */
 import { spawn } from 'node:child_process';
@@ -25,6 +28,7 @@ import { join } from 'node:path';
 import { createInterface } from 'node:readline';
 import { parseProfile } from '@shared/chemistry/profile';
 import { createPipeline } from '@shared/engine/pipeline';
+import { createLineParser } from '@shared/telemetry/parse-line';
 import { LineFramer } from '@shared/telemetry/framer';
 import { streamTelemetryLines } from '../../main/cli/read-lines';
 import { openLineInput } from '../../main/cli/line-input';
@@ -137,6 +141,59 @@ async function textPipeline(path: string, profileJson: unknown): Promise<number>
   return lines;
 }
 
+/** The 1 M log in memory with its line boundaries, for the per-stage figures (d). */
+interface HeldLog {
+  bytes: Buffer;
+  from: Int32Array;
+  to: Int32Array;
+}
+
+function holdLog(path: string): HeldLog {
+  const bytes = readFileSync(path);
+  const from: number[] = [];
+  const to: number[] = [];
+  const framer = LineFramer.ofBytes((_b, f, t) => {
+    from.push(f);
+    to.push(t);
+  });
+  framer.push(bytes);
+  framer.end();
+  return { bytes, from: Int32Array.from(from), to: Int32Array.from(to) };
+}
+
+async function stageFraming(log: HeldLog): Promise<number> {
+  let lines = 0;
+  const framer = LineFramer.ofBytes(() => {
+    lines++;
+  });
+  framer.push(log.bytes);
+  framer.end();
+  return lines;
+}
+
+async function stageParse(log: HeldLog, profileJson: unknown): Promise<number> {
+  const parsed = parseProfile(profileJson);
+  if (!parsed.ok) throw new Error(parsed.error);
+  const parser = createLineParser({ fields: parsed.profile.fields, thermistor: parsed.profile.thermistor });
+  const { bytes, from, to } = log;
+  let samples = 0;
+  for (let i = 0; i < from.length; i++)
+    if (parser.parseBytes(bytes, from[i], to[i], i).kind === 'sample') samples++;
+  if (samples === 0) throw new Error('the parser read no sample');
+  return from.length;
+}
+
+async function stagePipeline(log: HeldLog, profileJson: unknown): Promise<number> {
+  const parsed = parseProfile(profileJson);
+  if (!parsed.ok) throw new Error(parsed.error);
+  const pipeline = createPipeline(parsed.profile);
+  const { bytes, from, to } = log;
+  let events = 0;
+  for (let i = 0; i < from.length; i++) events += pipeline.pushBytes(bytes, from[i], to[i], i).events.length;
+  if (events === 0) throw new Error('the pipeline gave no event');
+  return from.length;
+}
+
 interface Rate {
   wall: number;
   cpu: number;
@@ -239,6 +296,26 @@ async function main(): Promise<void> {
   const get = (label: string) => rates.get(label) as Rate;
   ratio('replay / LineFramer splitting', get(REPLAY), get(FRAMER));
   ratio('replay / node:readline', get(REPLAY), get(READLINE), 1);
+  // (d) Per stage, in memory (no reading, no output), CPU ns per line; differences are the
+  // cost of each stage. Run after (b) so that replay was measured as `taperline replay` runs.
+  const held = holdLog(log1m);
+  const FRAMING = '(d) in memory: framing';
+  const PARSE = '(d) in memory: framing done, parse only';
+  const PIPE = '(d) in memory: parse + pipeline (time base, engine)';
+  const stages = await compare(5, [
+    [FRAMING, () => stageFraming(held)],
+    [PARSE, () => stageParse(held, profileJson)],
+    [PIPE, () => stagePipeline(held, profileJson)],
+  ]);
+  const ns = (rate: Rate | undefined) => 1e9 / (rate as Rate).cpu;
+  const parseNs = ns(stages.get(PARSE));
+  const pipeNs = ns(stages.get(PIPE));
+  const replayNs = ns(get(REPLAY));
+  console.log(
+    `  (d) CPU ns per line: readline ${ns(get(READLINE)).toFixed(0)}; replay ${replayNs.toFixed(0)} = ` +
+      `parse ${parseNs.toFixed(0)} + plausibility/time base/engine ${(pipeNs - parseNs).toFixed(0)} + ` +
+      `reading, framing and NDJSON out ${(replayNs - pipeNs).toFixed(0)} (framing alone ${ns(stages.get(FRAMING)).toFixed(0)})`,
+  );
   // The text path (live ports) last, so that replay is measured as `taperline replay` runs:
   // in a process where only the byte path has run (with both run first, one run under tsx
   // gave replay about 0.6x of this figure; a bundled build did not show it).
