@@ -59,6 +59,17 @@ await Promise.all([
     format: 'iife',
     target: 'chrome120',
   }),
+  // The Run report's charts: the dashboard's chart modules, inlined into each report file.
+  build({
+    ...common,
+    entryPoints: ['renderer/charts/report-charts.ts'],
+    outfile: join(out, 'report-charts.js'),
+    platform: 'browser',
+    format: 'iife',
+    target: 'chrome120',
+    sourcemap: false,
+    minify: true,
+  }),
 ]);
 
 mkdirSync(join(out, 'renderer'), { recursive: true });

@@ -56,6 +56,25 @@ function resolvedChartDist(): string | null {
   }
 }
 
+let reportChartsCache: string | null = null;
+
+/**
+ * The dashboard's chart modules bundled for the report (dist/report-charts.js, written by
+ * `npm run build` from renderer/charts/report-charts.ts); throws with a clear message when absent.
+ */
+export function reportChartsSource(): string {
+  if (reportChartsCache !== null) return reportChartsCache;
+  const beside = join(__dirname, 'report-charts.js'); // dist/cli.cjs and dist/report-charts.js
+  const path = existsSync(beside) ? beside : findUp(join('dist', 'report-charts.js'));
+  if (!path) {
+    throw new Error(
+      'the Run report needs the chart bundle dist/report-charts.js and it was not found; run npm run build in the project folder',
+    );
+  }
+  reportChartsCache = readFileSync(path, 'utf8');
+  return reportChartsCache;
+}
+
 /** The version in Taperline's package.json (bundled into the build, so it is known wherever the CLI runs). */
 export function taperlineVersion(): string {
   return packageJson.version;

@@ -1,12 +1,13 @@
 /**
- * The Run report: ONE self-contained HTML file (inline CSS, inline Chart.js, data as JSON),
- * readable on screen and in print, that makes no external request.
+ * The Run report: ONE self-contained HTML file (inline CSS, data as JSON, and the dashboard's
+ * own chart modules bundled with Chart.js and inlined), readable on screen and in print, that
+ * makes no external request. Scripts run only with the page's one-time nonce.
  */
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { Diagnosis } from '@shared/engine/diagnosis';
 import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
-import { chartJsSource, taperlineVersion } from './assets';
-import { REPORT_CHART_SCRIPT } from './chart-script';
+import { randomBytes } from 'node:crypto';
+import { reportChartsSource, taperlineVersion } from './assets';
 import { decimateColumns, seriesColumns } from './decimate';
 import { escapeHtml, jsonForScript, scriptSafe } from './html';
 import { gapRows, phaseSegments, reportMetrics } from './metrics';
@@ -148,7 +149,14 @@ export function buildRunReportHtml(input: RunReportInput): string {
     series: sourceSeries,
   });
 
-  const data = { startT, endT: endT > startT ? endT : startT + 1, phases: segments, charts };
+  // Alarm onsets as the app's chart markers (same plugin, same inks).
+  const markers = events.flatMap((e) =>
+    e.type === 'alarm'
+      ? [{ t: e.t, kind: e.level === 'critical' ? 'alarm-critical' : 'alarm-warn', label: e.code }]
+      : [],
+  );
+  const data = { startT, endT: endT > startT ? endT : startT + 1, phases: segments, markers, charts };
+  const nonce = randomBytes(16).toString('base64');
   const title = input.title ?? `Run report: ${profile.name}`;
   const generatedAt = input.generatedAt ?? new Date();
   return `<!doctype html>
@@ -156,7 +164,7 @@ export function buildRunReportHtml(input: RunReportInput): string {
 <head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:">
+<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'nonce-${nonce}'; style-src 'unsafe-inline'; img-src data:">
 <meta name="generator" content="Taperline ${escapeHtml(taperlineVersion())}">
 <title>${escapeHtml(title)}</title>
 <style>${REPORT_CSS}${CHECKS_CSS}</style>
@@ -173,8 +181,7 @@ ${gapsSection(gaps)}
 ${diagnosisSection(diagnosis)}
 ${footer(taperlineVersion(), generatedAt)}
 <script type="application/json" id="run-data">${jsonForScript(data)}</script>
-<script>${scriptSafe(chartJsSource())}</script>
-<script>${scriptSafe(REPORT_CHART_SCRIPT)}</script>
+<script nonce="${nonce}">${scriptSafe(reportChartsSource())}</script>
 </body>
 </html>
 `;

@@ -1,10 +1,10 @@
 /**
- * Thins a sample series to what a chart can draw (a few thousand points) while keeping its
- * shape (LTTB from shared/series), and breaks the line where telemetry stopped so a gap is
+ * Thins a sample series to what a chart can draw (a few thousand points) with min-max
+ * decimation from shared/series, as the dashboard does, so a one-sample spike survives; breaks the line where telemetry stopped so a gap is
  * not drawn as a slope.
  */
 import type { TimedSample } from '@shared/engine/types';
-import { lttbIndices } from '@shared/series';
+import { minMaxIndices } from '@shared/series';
 
 /** One field as columns, with the start index of each unbroken run. */
 export interface SeriesColumns {
@@ -40,7 +40,7 @@ export function seriesColumns(
 }
 
 /**
- * LTTB per run, each run given a share of `target` by its length; returned flat as
+ * Min-max per run, each run given a share of `target` by its length; returned flat as
  * x0, y0, x1, y1, ... with a null y between runs (a break in the line).
  */
 export function decimateColumns(cols: SeriesColumns, target: number): (number | null)[] {
@@ -56,7 +56,7 @@ export function decimateColumns(cols: SeriesColumns, target: number): (number | 
       for (let i = 0; i < len; i++) out.push(round(xs[i], 3), round(ys[i], 4));
       return;
     }
-    for (const i of lttbIndices(xs, ys, share)) out.push(round(xs[i], 3), round(ys[i], 4));
+    for (const i of minMaxIndices(xs, ys, share)) out.push(round(xs[i], 3), round(ys[i], 4));
   });
   return out;
 }

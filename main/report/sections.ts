@@ -134,7 +134,7 @@ export function chartsSection(blocks: ChartBlock[]): string {
         )} over time, phases shaded"></canvas></div></figure>`
       : `<div class="chart" id="fig-${b.id}"><h3>${e(b.title)}</h3><p class="note">No readings of this quantity in the run.</p></div>`,
   );
-  return `<section id="charts"><h2>Charts</h2><p class="note">Phases are shaded and named at the top of each chart; dashed lines are profile limits.</p>${parts.join('')}</section>`;
+  return `<section id="charts"><h2>Charts</h2><p class="note">Phases are shaded with the same hatch as in the app (named in the phase timeline above); alarm onsets are marked; dashed lines are profile limits.</p>${parts.join('')}</section>`;
 }
 
 export function alarmsSection(events: readonly EngineEvent[]): string {

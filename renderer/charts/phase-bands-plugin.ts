@@ -7,6 +7,12 @@ import { hatchTile } from './phase-style';
 import type { PhaseSpan } from './phase-spans';
 import { layoutLabelRows, type LabelBox } from './label-rows';
 
+/**
+ * The plugin's Chart.js id. It also marks the bundles: the dashboard's app.js and the Run
+ * report's inlined chart bundle both carry it, which the report tests check.
+ */
+export const PHASE_BANDS_PLUGIN_ID = 'taperlinePhaseBands';
+
 const LABEL_FONT = '600 11px system-ui, sans-serif';
 const LABEL_ROW_PX = 14;
 const MAX_LABEL_ROWS = 3;
@@ -43,7 +49,7 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
     return p;
   };
   return {
-    id: 'taperlinePhaseBands',
+    id: PHASE_BANDS_PLUGIN_ID,
     beforeDatasetsDraw(chart) {
       const { ctx, chartArea } = chart;
       const x = chart.scales.x;

@@ -433,11 +433,7 @@ export class TrendPanel {
         grid,
         // Ticks on whole clock steps (10 min, 1 h, 6 h, 1 d...) rather than Chart.js's even split.
         afterBuildTicks: (scale: Scale) => {
-          const step = niceTimeStep((scale.max - scale.min) / 8);
-          const ticks = [];
-          for (let v = Math.ceil(scale.min / step) * step; v <= scale.max; v += step)
-            ticks.push({ value: v });
-          scale.ticks = ticks;
+          scale.ticks = clockTicks(scale.min, scale.max);
         },
         ticks: {
           display: showTimeLabels,
@@ -446,10 +442,7 @@ export class TrendPanel {
           font: tickFont,
           color: '#3b4038',
           // Steps under a minute need seconds, or neighbouring labels would read the same.
-          callback: (v: number | string, i: number, ticks: { value: number }[]) =>
-            ticks.length > 1 && ticks[1].value - ticks[0].value < 60
-              ? formatRunClock(Number(v))
-              : formatRunTime(Number(v)),
+          callback: runTimeTickLabel,
         },
         title: { display: showTimeLabels, text: 'Run time [h:mm]', font: tickFont, color: '#3b4038' },
       },
@@ -600,6 +593,21 @@ export class TrendPanel {
 const TIME_STEPS_S = [
   10, 30, 60, 120, 300, 600, 900, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800, 604800,
 ];
+
+/** Ticks on whole clock steps (10 min, 1 h, 6 h, 1 d...) across [minS, maxS]; the Run report uses them too. */
+export function clockTicks(minS: number, maxS: number): { value: number }[] {
+  const step = niceTimeStep((maxS - minS) / 8);
+  const ticks = [];
+  for (let v = Math.ceil(minS / step) * step; v <= maxS; v += step) ticks.push({ value: v });
+  return ticks;
+}
+
+/** A run-time tick label: `h:mm` (days past 24 h), with seconds when steps are under a minute. */
+export function runTimeTickLabel(v: number | string, _i: number, ticks: { value: number }[]): string {
+  return ticks.length > 1 && ticks[1].value - ticks[0].value < 60
+    ? formatRunClock(Number(v))
+    : formatRunTime(Number(v));
+}
 
 export function niceTimeStep(roughS: number): number {
   return TIME_STEPS_S.find((s) => s >= roughS) ?? Math.ceil(roughS / 604800) * 604800;

@@ -14,6 +14,7 @@ import { parseProfile } from '@shared/chemistry/profile';
 import { getScenario, simulatedLines } from '../../main/simulator';
 import { buildRunReport, CHROMIUM_ARGS, renderReportPdf, reportInputOf } from '../../main/report';
 import { RunCollector } from '../../main/report/collect-run';
+import { PHASE_BANDS_PLUGIN_ID } from '../../renderer/charts/phase-bands-plugin';
 
 const CHROMIUM = '/usr/bin/chromium';
 const SECTIONS = [
@@ -65,6 +66,12 @@ test(
     await page.waitForFunction(() => document.body.hasAttribute('data-charts-drawn'));
     assert.deepEqual(errors, [], 'no script error on the page');
     assert.deepEqual(requests, [fileUrl], 'self-contained: no request beyond the file itself');
+    // The charts were drawn by the dashboard's chart modules (dist/report-charts.js, inlined).
+    assert.equal(await page.locator('body').getAttribute('data-chart-module'), PHASE_BANDS_PLUGIN_ID);
+    const inlined = await page
+      .locator('script:not([type])')
+      .evaluateAll((els) => els.map((e) => e.textContent));
+    assert.deepEqual(inlined, [readFileSync(join('dist', 'report-charts.js'), 'utf8')]);
 
     for (const id of SECTIONS) assert.equal(await page.locator(`#${id}`).count(), 1, `section #${id} exists`);
     assert.match((await page.locator('#caution').innerText()).toLowerCase(), /fire/);

@@ -5,7 +5,7 @@
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProfile, profileFromChemistry } from '@shared/chemistry/profile';
@@ -18,6 +18,8 @@ import { getScenario, simulatedLines } from '../../main/simulator';
 import { openRecorder, openRunReader } from '../../main/recorder';
 import { buildRunReport, NoChromiumError, renderReportPdf } from '../../main/report';
 import { RunCollector } from '../../main/report/collect-run';
+import { scriptSafe } from '../../main/report/html';
+import { PHASE_BANDS_PLUGIN_ID } from '../../renderer/charts/phase-bands-plugin';
 
 const SECTIONS = [
   'report-title',
@@ -78,6 +80,13 @@ test('a report has every section, the caution, and references nothing outside it
   assert.doesNotMatch(html, /\s(src|href)\s*=\s*["']?(https?:)?\/\//i, 'no external src or href');
   assert.doesNotMatch(html, /@import|url\(\s*["']?https?:/i, 'no external CSS');
   assert.match(html, /Chart\.js v4/, 'Chart.js inlined');
+  // Strict CSP: only the script carrying this page's nonce runs; no inline script without it.
+  const nonce = /script-src 'nonce-([A-Za-z0-9+/=]+)'/.exec(html)?.[1];
+  assert.ok(nonce, 'script-src allows one nonce');
+  assert.doesNotMatch(html, /script-src[^;"]*'unsafe-inline'/);
+  const scripts = [...html.matchAll(/<script([^>]*)>/g)].map((m) => m[1]);
+  for (const attrs of scripts)
+    assert.ok(attrs.includes(`nonce="${nonce}"`) || attrs.includes('type="application/json"'), attrs);
   assert.match(html, /Made by Taperline 0\.1\.0 on 2026-06-01T12:00:00\.000Z/);
   assert.match(html, /overtemp/);
   const data = embeddedData(html);
@@ -86,6 +95,17 @@ test('a report has every section, the caution, and references nothing outside it
     ['chart-voltage', 'chart-current', 'chart-temperature', 'chart-source'],
   );
   assert.ok(data.phases.length >= 2);
+});
+
+test("the report's charts are the dashboard's chart modules: dist/report-charts.js inlined as is", () => {
+  // npm run build writes both bundles from renderer/charts; the report inlines its one unchanged.
+  const bundle = readFileSync(join('dist', 'report-charts.js'), 'utf8');
+  const app = readFileSync(join('dist', 'renderer', 'app.js'), 'utf8');
+  const run = scenarioRun('overheating');
+  const html = buildRunReport({ ...run, diagnosis: diagnose(run) });
+  assert.ok(html.includes(scriptSafe(bundle)), 'the report carries the bundle byte for byte');
+  assert.ok(bundle.includes(`"${PHASE_BANDS_PLUGIN_ID}"`), "the bundle holds the app's phase bands plugin");
+  assert.ok(app.includes(`"${PHASE_BANDS_PLUGIN_ID}"`), "the dashboard's bundle holds the same plugin");
 });
 
 test('a 7-day 1 Hz run is thinned to a few thousand points per series', (t) => {
@@ -98,7 +118,8 @@ test('a 7-day 1 Hz run is thinned to a few thousand points per series', (t) => {
       t: tS,
       rxS: tS,
       extra: {},
-      vbatV: 13.5 + 0.1 * Math.sin(i / 5000),
+      // One sample at 15.9 V on day 3: min-max decimation keeps it, as in the app (LTTB may not).
+      vbatV: i === 259_201 ? 15.9 : 13.5 + 0.1 * Math.sin(i / 5000),
       ibatA: 0.2 + 0.05 * Math.sin(i / 777),
       tempC: 20 + 5 * Math.sin(i / 43200),
       vinV: 18,
@@ -121,6 +142,9 @@ test('a 7-day 1 Hz run is thinned to a few thousand points per series', (t) => {
     for (const s of chart.series)
       assert.ok(s.xy.length / 2 <= 2100, `${chart.id} ${s.label}: ${s.xy.length / 2} points`);
   }
+  const vbat = embeddedData(html).charts.find((c) => c.id === 'chart-voltage')!.series[0].xy;
+  const spike = vbat.findIndex((v, i) => i % 2 === 1 && v === 15.9);
+  assert.ok(spike > 0 && vbat[spike - 1] === 259_201, 'the one-sample spike is kept at its time');
 });
 
 test('text from the profile and the alarms is escaped', () => {

@@ -3,7 +3,6 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { PHASE_PALETTE } from '@shared/display/phase-palette';
 import { formatRunTime, formatRunTimeSeconds } from '@shared/display/run-time';
-import { REPORT_CHART_SCRIPT } from '../../main/report/chart-script';
 import { REPORT_CSS } from '../../main/report/styles';
 import { clock } from '../../main/report/html';
 import { PHASE_STYLES } from '../../renderer/charts/phase-style';
@@ -15,15 +14,9 @@ test('a 7-day run reads in days, never 168:00', () => {
   assert.equal(formatRunTime(5400), '1:30');
 });
 
-test('the report page script carries the same time format, self-contained', () => {
-  assert.ok(REPORT_CHART_SCRIPT.includes(`var clock = ${formatRunTime.toString()}`), 'embedded as is');
-  const embedded = new Function(`return ${formatRunTime.toString()}`)() as (t: number) => string;
-  assert.equal(embedded(7 * 86400), '7 d 0:00');
-});
-
 test('CC is the same colour in the app, the report charts and the report timeline', () => {
+  // The report's charts are the app's phase-style module itself (bundled), see report-html tests.
   assert.equal(PHASE_STYLES.cc.ink, PHASE_PALETTE.cc.ink);
-  assert.ok(REPORT_CHART_SCRIPT.includes(PHASE_PALETTE.cc.ink));
   // The timeline's hatch lines are the palette ink at 45 % (183, 121, 26 = #b7791a).
   assert.match(
     REPORT_CSS,
