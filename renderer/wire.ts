@@ -115,6 +115,7 @@ const runRowSchema = z.looseObject({
   firmware: z.string().nullish(),
   batchId: z.string().nullish(),
   verdict: z.enum(['pass', 'fail', 'incomplete']).nullish(),
+  internalResistanceOhm: z.number().nullish(),
 });
 
 export type RunListRow = RunRow;

@@ -29,6 +29,7 @@ interface RunDbRow {
   firmware?: string | null;
   batch_id?: string | null;
   verdict_json?: string | null;
+  summary_json?: string | null;
 }
 
 interface SampleDbRow {
@@ -85,7 +86,22 @@ function toRunRow(r: RunDbRow): RunRow {
     firmware: r.firmware ?? null,
     batchId: r.batch_id ?? null,
     verdict: verdictOf(r.verdict_json),
+    internalResistanceOhm: internalResistanceOf(r.summary_json),
   };
+}
+
+/**
+ * The internal resistance stored in a run's summary; null when none was stored, the summary
+ * predates it (then it held only time per phase) or it is unreadable.
+ */
+export function internalResistanceOf(json: string | null | undefined): number | null {
+  if (!json) return null;
+  try {
+    const v = (JSON.parse(json) as { internalResistanceOhm?: unknown }).internalResistanceOhm;
+    return typeof v === 'number' && Number.isFinite(v) && v > 0 ? v : null;
+  } catch {
+    return null;
+  }
 }
 
 /** The verdict word of a stored verdict JSON; null when none was stored or it is unreadable. */

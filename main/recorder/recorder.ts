@@ -142,15 +142,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
       db.transaction(() => {
         for (const op of spill.ops) writeOp(op);
         for (const [runId, t] of spill.totals)
-          st.totals.run(
-            t.durationS,
-            t.ah,
-            t.wh,
-            t.lines,
-            t.rejected,
-            t.phaseS ? JSON.stringify(t.phaseS) : null,
-            runId,
-          );
+          st.totals.run(t.durationS, t.ah, t.wh, t.lines, t.rejected, summaryJson(t), runId);
         for (const [runId, rx] of spill.lastRx) st.lastRx.run(rx, runId);
       })();
       rmSync(path, { force: true });
@@ -263,15 +255,7 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
     for (const op of ops) writeOp(op);
     for (const [runId, slot] of partialSlots) st.slot.run(...slotParams(runId, slot));
     for (const [runId, t] of pendingTotals) {
-      st.totals.run(
-        t.durationS,
-        t.ah,
-        t.wh,
-        t.lines,
-        t.rejected,
-        t.phaseS ? JSON.stringify(t.phaseS) : null,
-        runId,
-      );
+      st.totals.run(t.durationS, t.ah, t.wh, t.lines, t.rejected, summaryJson(t), runId);
     }
     for (const [runId, rx] of pendingLastRx) st.lastRx.run(rx, runId);
   });
@@ -527,4 +511,14 @@ export function openRecorder(dbPath: string = defaultDbPath(), options: Recorder
   }
 
   return recorder;
+}
+
+/**
+ * The run's summary column: time per phase and the engine's internal-resistance estimate
+ * (read back as RunRow.internalResistanceOhm for the Runs view's pack history).
+ */
+function summaryJson(t: RunTotals): string | null {
+  const ir = t.internalResistanceOhm;
+  if (!t.phaseS && (ir === undefined || ir === null)) return null;
+  return JSON.stringify({ phaseS: t.phaseS ?? {}, internalResistanceOhm: ir ?? null });
 }

@@ -66,6 +66,8 @@ export interface RunTotals {
   lines: number;
   rejected: number;
   phaseS?: Partial<Record<string, number>>;
+  /** The engine's latest internal-resistance estimate, ohms (whole pack); null when none yet. */
+  internalResistanceOhm?: number | null;
 }
 
 /** One received (or sent) line as it is stored; `tooLong` = cut at MAX_LINE_BYTES. */

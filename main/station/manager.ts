@@ -11,7 +11,7 @@ import { createLineParser, type LineParser } from '@shared/telemetry/parse-line'
 import type { Sample } from '@shared/telemetry/types';
 import { MAX_ASSUME_LINES, ProfileAssumer, assumedProfileJson } from '@shared/engine/assumed-profile';
 import type { EngineEvent, TimedSample } from '@shared/engine/types';
-import type { Recorder, RunEndReason } from '../recorder/types';
+import type { Recorder, RunEndReason, RunTotals } from '../recorder/types';
 import type { RemoteStations } from '../sources';
 import type { LineSource, SourceLine, SourceStatus } from '../sources/types';
 import { StationConfigError } from './errors';
@@ -287,12 +287,20 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
     recorder.setRunInfo(st.runId, { verdictJson: JSON.stringify(report) });
   }
 
+  /** What the recorder keeps of a run's totals: the summary plus the engine's resistance estimate. */
+  function totalsOf(st: Station): RunTotals {
+    return {
+      ...st.pipeline.summary(),
+      internalResistanceOhm: st.pipeline.state().metrics.internalResistanceOhm,
+    };
+  }
+
   function endRun(st: Station, reason: RunEndReason): void {
     const recorder = recorderOf(st);
     if (!recorder || st.runId === null) return;
     try {
       guarded(st, 'judging the run', () => storeVerdict(recorder, st));
-      recorder.endRun(st.runId, now(), reason, st.pipeline.summary());
+      recorder.endRun(st.runId, now(), reason, totalsOf(st));
     } catch (err) {
       problem(
         st.id,
@@ -434,7 +442,7 @@ export function createStationManager(options: StationManagerOptions = {}): Stati
       guarded(st, 'the silence check', () => {
         if (st.source.recordedClock !== true) record(st, st.pipeline.tick(rxS));
         const recorder = recorderOf(st);
-        if (recorder && st.runId !== null) recorder.updateTotals(st.runId, st.pipeline.summary());
+        if (recorder && st.runId !== null) recorder.updateTotals(st.runId, totalsOf(st));
       });
     }
   }, options.tickMs ?? 1000);

@@ -69,6 +69,8 @@ export interface RunRow {
   batchId?: string | null;
   /** The checks' verdict, when the run was judged. */
   verdict?: 'pass' | 'fail' | 'incomplete' | null;
+  /** The engine's last internal-resistance estimate of the run, ohms (whole pack); null when none. */
+  internalResistanceOhm?: number | null;
 }
 
 /** Canonical sample columns that overview queries can bucket. */

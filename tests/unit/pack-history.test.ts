@@ -48,3 +48,24 @@ test('history oldest first, change against the first completed run', () => {
   assert.equal(rows[1].ahChangePct, -5); // 38 of 40 Ah
   assert.equal(rows[2].ahChangePct, -10); // 36 of 40 Ah
 });
+
+test('internal resistance per run in milliohms, against the first completed run that has one', () => {
+  // Invented demo figures: a boat-house battery whose resistance climbs from 40 to 50 mΩ.
+  const withIr = [
+    run(1, { internalResistanceOhm: null }), // no current step in this run: no estimate
+    run(2, { internalResistanceOhm: 0.04, endReason: 'stopped' }),
+    run(3, { internalResistanceOhm: 0.04 }),
+    run(4, { internalResistanceOhm: 0.05 }),
+    run(5, {}), // recorded before the estimate was kept
+  ];
+  const rows = packHistory(withIr, 'profile boat house battery');
+  assert.deepEqual(
+    rows.map((r) => r.irMilliohm),
+    [null, 40, 40, 50, null],
+  );
+  assert.equal(rows[2].irChangePct, null, 'run 3 is the reference: the first completed run with an estimate');
+  assert.equal(rows[1].irChangePct, 0);
+  assert.ok(Math.abs(rows[3].irChangePct! - 25) < 1e-9); // 50 of 40 mΩ
+  assert.equal(rows[0].irChangePct, null);
+  assert.equal(rows[4].irChangePct, null);
+});

@@ -388,3 +388,47 @@ test('a read-only reader sees the runs and deletes nothing it is not asked to', 
     rmSync(dir, { recursive: true, force: true });
   }
 });
+
+test("a run's internal resistance is kept in its summary and comes back on its row", () => {
+  const { dir, path } = tempDb();
+  try {
+    const rec = openRecorder(path);
+    const a = rec.startRun(START);
+    fill(rec, a.runId, 10);
+    // Invented figures: the engine's estimate 0.062 Ω (whole 2S pack).
+    rec.endRun(a.runId, START.startRxS + 11, 'completed', {
+      durationS: 9,
+      ah: 0.0025,
+      wh: 0.018,
+      lines: 10,
+      rejected: 0,
+      phaseS: { cc: 9 },
+      internalResistanceOhm: 0.062,
+    });
+    const b = rec.startRun({ ...START, startRxS: START.startRxS + 100 });
+    rec.endRun(b.runId, START.startRxS + 101, 'stopped', {
+      durationS: 1,
+      ah: 0,
+      wh: 0,
+      lines: 0,
+      rejected: 0,
+      internalResistanceOhm: null,
+    });
+    rec.close();
+    // A summary written before the estimate was kept held only time per phase.
+    const db = new Database(path);
+    const c = db
+      .prepare(
+        "INSERT INTO runs (station_id, station_label, profile_name, chemistry, profile_json, start_rx_s, duration_s, ah, wh, lines, rejected, summary_json) VALUES ('bench-1', '', 'old', 'li-ion', '{}', 1, 0, 0, 0, 0, 0, '{\"cc\":5}')",
+      )
+      .run().lastInsertRowid;
+    db.close();
+    const reader = openRunReader(path);
+    assert.equal(reader.getRun(a.runId)?.internalResistanceOhm, 0.062);
+    assert.equal(reader.getRun(b.runId)?.internalResistanceOhm, null);
+    assert.equal(reader.getRun(Number(c))?.internalResistanceOhm, null);
+    reader.close();
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
