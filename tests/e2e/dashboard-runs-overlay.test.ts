@@ -84,6 +84,10 @@ test('two runs overlaid at the cc→cv change', { timeout: 180_000 }, async (t) 
   );
   assert.match((await history.locator('tbody tr').first().textContent()) ?? '', /reference/);
   assert.match((await history.locator('tbody tr').nth(1).textContent()) ?? '', /[+−]\d+\.\d %/);
+  // The engine's internal-resistance estimate, recorded with each run by the station manager.
+  assert.match((await history.locator('thead').textContent()) ?? '', /Internal resistance/);
+  for (const row of await history.locator('tbody tr').all())
+    assert.match((await row.textContent()) ?? '', /\d+ mΩ/);
   await history.scrollIntoViewIfNeeded();
   await screenshot(page, 'runs-pack-history');
 });
