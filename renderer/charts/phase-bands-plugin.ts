@@ -24,10 +24,21 @@ export interface TimeMarker {
   label?: string;
 }
 
+/** A stretch with no telemetry (unplug, silence): nothing was measured or integrated there. */
+export interface GapSpan {
+  t0: number;
+  /** null while the gap lasts: drawn to the right edge. */
+  t1: number | null;
+}
+
 export interface BandSource {
   spans(): readonly PhaseSpan[];
   markers(): readonly TimeMarker[];
+  gaps?(): readonly GapSpan[];
 }
+
+const GAP_FILL = 'rgba(60, 64, 72, 0.16)';
+const GAP_INK = '#4a4f58';
 
 const MARKER_INK: Record<TimeMarker['kind'], string> = {
   pick: '#2b2f36',
@@ -71,6 +82,7 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
         ctx.fillStyle = patternFor(chart, span.phase);
         ctx.fillRect(left, chartArea.top, right - left, chartArea.bottom - chartArea.top);
       }
+      drawGaps(ctx, chart, source.gaps?.() ?? []);
       ctx.restore();
     },
     afterDatasetsDraw(chart) {
@@ -128,4 +140,35 @@ export function phaseBandsPlugin(source: BandSource): Plugin<'line'> {
       ctx.restore();
     },
   };
+}
+
+/** Gaps are drawn over the phase wash in grey, edged and labelled, so a hole never reads as data. */
+function drawGaps(ctx: CanvasRenderingContext2D, chart: Chart, gaps: readonly GapSpan[]): void {
+  const x = chart.scales.x;
+  const area = chart.chartArea;
+  for (const gap of gaps) {
+    const t1 = gap.t1 ?? x.max;
+    if (t1 < x.min || gap.t0 > x.max) continue;
+    const left = Math.max(area.left, x.getPixelForValue(gap.t0));
+    const right = Math.min(area.right, x.getPixelForValue(t1));
+    const widthPx = Math.max(2, right - left);
+    ctx.fillStyle = GAP_FILL;
+    ctx.fillRect(left, area.top, widthPx, area.bottom - area.top);
+    ctx.strokeStyle = GAP_INK;
+    ctx.setLineDash([3, 3]);
+    ctx.beginPath();
+    ctx.moveTo(Math.round(left) + 0.5, area.top);
+    ctx.lineTo(Math.round(left) + 0.5, area.bottom);
+    if (gap.t1 !== null) {
+      ctx.moveTo(Math.round(left + widthPx) - 0.5, area.top);
+      ctx.lineTo(Math.round(left + widthPx) - 0.5, area.bottom);
+    }
+    ctx.stroke();
+    ctx.setLineDash([]);
+    if (widthPx >= 40) {
+      ctx.fillStyle = GAP_INK;
+      ctx.font = '600 11px system-ui, sans-serif';
+      ctx.fillText('no data', left + 4, area.bottom - 6);
+    }
+  }
 }

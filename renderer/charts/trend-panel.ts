@@ -18,7 +18,7 @@ import {
 } from 'chart.js';
 import { formatRunTime } from '../format';
 import { formatRunClock } from '@shared/engine/time-format';
-import { phaseBandsPlugin, type TimeMarker } from './phase-bands-plugin';
+import { phaseBandsPlugin, type GapSpan, type TimeMarker } from './phase-bands-plugin';
 import type { PlotField, PlotPoint, TrendSource } from './trend-source';
 
 Chart.register(LineController, LineElement, PointElement, LinearScale);
@@ -121,6 +121,7 @@ export class TrendPanel {
   private rafHandle = 0;
   private lastDrawMs = -Infinity;
   private markers: TimeMarker[] = [];
+  private gaps: GapSpan[] = [];
   private pick: TimeMarker | null = null;
   /** The time under the pointer: a crosshair on every chart and a readout of each value. */
   private cursor: TimeMarker | null = null;
@@ -198,6 +199,13 @@ export class TrendPanel {
   setMarkers(markers: TimeMarker[]): void {
     if (JSON.stringify(markers) === JSON.stringify(this.markers)) return;
     this.markers = markers;
+    this.requestRedraw('view');
+  }
+
+  /** Stretches without telemetry, shaded on every chart. */
+  setGaps(gaps: GapSpan[]): void {
+    if (JSON.stringify(gaps) === JSON.stringify(this.gaps)) return;
+    this.gaps = gaps;
     this.requestRedraw('view');
   }
 
@@ -478,6 +486,9 @@ export class TrendPanel {
         // Pointer input is handled below (zoom, pan, pick); Chart.js needs no events at all.
         events: [],
         spanGaps: true,
+        // Chart.js plugins are registered globally (the Sweep view adds Legend and Tooltip):
+        // the trend charts carry their own legend line above each chart.
+        plugins: { legend: { display: false }, tooltip: { enabled: false } },
         elements: { point: { radius: 0, hitRadius: 0 }, line: { tension: 0 } },
         layout: { padding: { top: 6, right: spec.right ? 4 : RIGHT_AXIS_PX + 4, left: 0, bottom: 0 } },
         scales,
@@ -485,6 +496,7 @@ export class TrendPanel {
       plugins: [
         phaseBandsPlugin({
           spans: () => this.source?.spans() ?? [],
+          gaps: () => this.gaps,
           markers: () => [
             ...this.markers,
             ...(this.pick ? [this.pick] : []),

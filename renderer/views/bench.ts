@@ -3,6 +3,7 @@
  * bench, trends by physical quantity on one time axis with the phases shaded behind, metrics,
  * alarms with Acknowledge, follow-live / pause, and zoom and pan over the whole run.
  */
+import { gapSpans } from '../charts/gap-spans';
 import type { AlarmEvent, EngineEvent } from '@shared/engine/types';
 import type { Api } from '../api';
 import { LiveStationSource, RecordedRunSource } from '../charts/sources';
@@ -442,6 +443,7 @@ export class BenchView implements View {
       ...metric('Lines', `${model.view.lines} (${model.view.rejected} rejected)`),
     );
     this.panel.setMarkers(alarmMarkers(model.events));
+    this.panel.setGaps(gapSpans(model.events));
     const rows = model.alarmHistory();
     const alarmsKey = JSON.stringify(rows);
     if (alarmsKey === this.alarmsKey) return;
@@ -482,6 +484,7 @@ export class BenchView implements View {
     this.alarmsKey = '';
     renderAlarmList(this.alarms, recordedAlarms(events), { why: (alarm) => this.openDiagnosis(alarm.t) });
     this.panel.setMarkers(alarmMarkers(events));
+    this.panel.setGaps(gapSpans(events));
   }
 
   private pickKey: string | null = null;

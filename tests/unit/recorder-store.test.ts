@@ -183,7 +183,13 @@ test('CSV export carries units in the headers and every sample', async () => {
       Record<string, string>
     >;
     assert.equal(rows.length, 2500);
-    assert.ok('vbat (V)' in rows[0] && 'ibat (A)' in rows[0] && 'temp (°C)' in rows[0] && 't (s)' in rows[0]);
+    assert.ok(
+      'vbat (V)' in rows[0] &&
+        'ibat (A)' in rows[0] &&
+        'temp (°C)' in rows[0] &&
+        't (s since start)' in rows[0] &&
+        'time (ISO 8601)' in rows[0],
+    );
     assert.equal(Number(rows[1234]['vbat (V)']), sampleAt(1234).vbatV);
     assert.equal(rows[3].fan, '1');
     assert.equal(rows[4].fan, '');
