@@ -155,7 +155,16 @@ export function buildRunReportHtml(input: RunReportInput): string {
       ? [{ t: e.t, kind: e.level === 'critical' ? 'alarm-critical' : 'alarm-warn', label: e.code }]
       : [],
   );
-  const data = { startT, endT: endT > startT ? endT : startT + 1, phases: segments, markers, charts };
+  // Gap events as recorded: the chart bundle turns them into the app's gap bands (gap-spans.ts).
+  const gapEvents = events.filter((e) => e.type === 'gap');
+  const data = {
+    startT,
+    endT: endT > startT ? endT : startT + 1,
+    phases: segments,
+    markers,
+    gapEvents,
+    charts,
+  };
   const nonce = randomBytes(16).toString('base64');
   const title = input.title ?? `Run report: ${profile.name}`;
   const generatedAt = input.generatedAt ?? new Date();

@@ -1,6 +1,6 @@
 /**
  * The Run report's charts, drawn by the dashboard's own chart modules: the phase bands plugin
- * (wash + hatch per phase, alarm markers), min-max window decimation (a one-sample spike stays
+ * (wash + hatch per phase, gap bands, alarm markers), min-max window decimation (a one-sample spike stays
  * visible) and the run-time axis format. build/build.mjs bundles this entry to
  * dist/report-charts.js and the report inlines that file, so report and app cannot drift.
  */
@@ -14,7 +14,9 @@ import {
   type ChartDataset,
   type Scale,
 } from 'chart.js';
+import type { EngineEvent } from '@shared/engine/types';
 import { decimateWindow } from './decimate';
+import { gapSpans } from './gap-spans';
 import { PHASE_BANDS_PLUGIN_ID, phaseBandsPlugin, type TimeMarker } from './phase-bands-plugin';
 import type { PhaseSpan } from './phase-spans';
 import { clockTicks, MAX_POINTS_PER_DATASET, runTimeTickLabel } from './trend-panel';
@@ -28,6 +30,8 @@ export interface ReportChartData {
   endT: number;
   phases: { phase: PhaseSpan['phase']; startT: number; endT: number }[];
   markers?: TimeMarker[];
+  /** The run's gap events, drawn as the app draws them. */
+  gapEvents?: EngineEvent[];
   charts: {
     id: string;
     axes: { id: string; title: string }[];
@@ -71,6 +75,7 @@ export function seriesPoints(xy: readonly (number | null)[], maxPoints: number):
 export function drawReportCharts(data: ReportChartData, doc: Document = document): number {
   const spans: PhaseSpan[] = data.phases.map((p) => ({ phase: p.phase, t0: p.startT, t1: p.endT }));
   const markers = data.markers ?? [];
+  const gaps = gapSpans(data.gapEvents ?? []);
   let drawn = 0;
   for (const spec of data.charts) {
     const canvas = doc.getElementById(spec.id);
@@ -122,7 +127,7 @@ export function drawReportCharts(data: ReportChartData, doc: Document = document
         plugins: { legend: { display: true, position: 'top' } },
         scales,
       },
-      plugins: [phaseBandsPlugin({ spans: () => spans, markers: () => markers })],
+      plugins: [phaseBandsPlugin({ spans: () => spans, markers: () => markers, gaps: () => gaps })],
     });
     canvas.setAttribute('data-rendered', 'true');
     drawn++;
