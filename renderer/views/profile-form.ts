@@ -3,6 +3,7 @@
  * mapping, turned into profile JSON (docs/profile.md). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
+import { keysNotShown, withCarriedKeys } from './profile-carry';
 import { CHEMISTRY_DEFAULTS } from '@shared/chemistry/defaults';
 import { gardenSensorPack } from '@shared/chemistry/demo-profiles';
 import type { ResolvedProfile } from '@shared/chemistry/types';
@@ -291,6 +292,15 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     return Number.isFinite(n) ? n : text;
   };
 
+  let carried: Record<string, unknown> = {};
+  const shownKeys = new Set([
+    'name',
+    'chemistry',
+    'tempWindowC',
+    'fields',
+    ...[...BASICS, ...LIMITS].map((f) => f.key),
+  ]);
+
   const form: ProfileForm = {
     root,
     read() {
@@ -321,9 +331,10 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         fields[field] = { key: key || field, ...(unit ? { unit } : {}) };
       }
       if (Object.keys(fields).length) out.fields = fields;
-      return out;
+      return withCarriedKeys(carried, out);
     },
     fill(profile) {
+      carried = keysNotShown(profile, shownKeys);
       for (const input of inputs.values()) if (input instanceof HTMLInputElement) input.value = '';
       name.value = typeof profile.name === 'string' ? profile.name : '';
       if (typeof profile.chemistry === 'string') chemistry.value = profile.chemistry;
