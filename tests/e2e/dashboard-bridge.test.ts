@@ -104,7 +104,7 @@ test('the dashboard over the preload bridge', { timeout: 180_000 }, async (t) =>
   await page.keyboard.press('Alt+5');
   await page.locator('#profile-cells').fill('0');
   await page.waitForFunction(
-    () => /cells/.test(document.querySelector('#profile-cells-err')?.textContent ?? ''),
+    () => /cells/i.test(document.querySelector('#profile-cells-err')?.textContent ?? ''),
     undefined,
     { timeout: 10_000 },
   );
