@@ -310,6 +310,21 @@ function weakPanel(): Scenario {
   };
 }
 
+/** The demo boat's house bank (invented): 6-cell 12 V 100 Ah lead-acid, shared by its scenarios. */
+const BOAT_HOUSE_BANK = {
+  chemistry: 'lead-acid',
+  cells: 6,
+  capacityAh: 100,
+  seriesOhmPerCell: 0.0008,
+  polarisationOhmPerCell: 0.0005,
+  polarisationTauS: 300,
+  acceptanceVPerC: 0.55,
+  acceptanceKneeSoc: 0.85,
+  voltsPerKPerCell: 0,
+  shortedCells: 0,
+  selfDischargeA: 0,
+} as const;
+
 function leadAcidFloat(): Scenario {
   const profile: ProfileJson = {
     name: 'boat house battery 12 V 100 Ah lead-acid (demo)',
@@ -330,19 +345,7 @@ function leadAcidFloat(): Scenario {
     profile,
     reportsNtc: false,
     bench: bench(profile, {
-      pack: {
-        chemistry: 'lead-acid',
-        cells: 6,
-        capacityAh: 100,
-        seriesOhmPerCell: 0.0008,
-        polarisationOhmPerCell: 0.0005,
-        polarisationTauS: 300,
-        acceptanceVPerC: 0.55,
-        acceptanceKneeSoc: 0.85,
-        voltsPerKPerCell: 0,
-        shortedCells: 0,
-        selfDischargeA: 0,
-      },
+      pack: BOAT_HOUSE_BANK,
       initialSoc: 0.5,
       thermal: {
         heatCapacityJPerK: 24000,
@@ -611,19 +614,7 @@ function sweepScenario(name: string, description: string, day: SweepDay): Scenar
     reportsPanelTemp: true,
     bench: {
       ...bench(profile, {
-        pack: {
-          chemistry: 'lead-acid',
-          cells: 6,
-          capacityAh: 100,
-          seriesOhmPerCell: 0.0008,
-          polarisationOhmPerCell: 0.0005,
-          polarisationTauS: 300,
-          acceptanceVPerC: 0.55,
-          acceptanceKneeSoc: 0.85,
-          voltsPerKPerCell: 0,
-          shortedCells: 0,
-          selfDischargeA: 0,
-        },
+        pack: BOAT_HOUSE_BANK,
         initialSoc: 0.5,
         thermal: {
           heatCapacityJPerK: 24000,
