@@ -6,10 +6,9 @@
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { Diagnosis } from '@shared/engine/diagnosis';
 import type { EngineEvent, RunMetrics, RunSummary, TimedSample } from '@shared/engine/types';
-import { randomBytes } from 'node:crypto';
 import { reportChartsSource, taperlineVersion } from './assets';
 import { decimateColumns, seriesColumns } from './decimate';
-import { escapeHtml, jsonForScript, scriptSafe } from './html';
+import { jsonForScript, reportHead, reportScripts } from './html';
 import { gapRows, phaseSegments, reportMetrics } from './metrics';
 import {
   alarmsSection,
@@ -165,19 +164,12 @@ export function buildRunReportHtml(input: RunReportInput): string {
     gapEvents,
     charts,
   };
-  const nonce = randomBytes(16).toString('base64');
+  const scripts = reportScripts();
   const title = input.title ?? `Run report: ${profile.name}`;
   const generatedAt = input.generatedAt ?? new Date();
   return `<!doctype html>
 <html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'nonce-${nonce}'; style-src 'unsafe-inline'; img-src data:">
-<meta name="generator" content="Taperline ${escapeHtml(taperlineVersion())}">
-<title>${escapeHtml(title)}</title>
-<style>${REPORT_CSS}${CHECKS_CSS}</style>
-</head>
+${reportHead({ title, css: REPORT_CSS + CHECKS_CSS, version: taperlineVersion(), nonce: scripts.nonce })}
 <body>
 ${titleSection(title, input.source, profile)}
 ${checksSection(input.checks ?? null, input.boardUnderTest ?? { board: null, operator: null, firmware: null })}
@@ -190,7 +182,7 @@ ${gapsSection(gaps)}
 ${diagnosisSection(diagnosis)}
 ${footer(taperlineVersion(), generatedAt)}
 <script type="application/json" id="run-data">${jsonForScript(data)}</script>
-<script nonce="${nonce}">${scriptSafe(reportChartsSource())}</script>
+${scripts.script(reportChartsSource())}
 </body>
 </html>
 `;

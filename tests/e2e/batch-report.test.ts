@@ -47,6 +47,13 @@ test(
     const dir = mkdtempSync(join(tmpdir(), 'taperline-batch-report-'));
     t.after(() => rmSync(dir, { recursive: true, force: true }));
     const { html, expectedPass, keys } = batchHtml();
+    // The Run report's policy: only scripts carrying this page's nonce run (the charts
+    // drawing below proves they do), never an inline script without it.
+    const nonce = /script-src 'nonce-([A-Za-z0-9+/=]+)'/.exec(html)?.[1];
+    assert.ok(nonce, 'script-src allows one nonce');
+    assert.doesNotMatch(html, /script-src[^;"]*'unsafe-inline'/);
+    for (const [, attrs] of html.matchAll(/<script([^>]*)>/g))
+      assert.ok(attrs.includes(`nonce="${nonce}"`) || attrs.includes('type="application/json"'), attrs);
     const htmlPath = join(dir, 'batch.html');
     writeFileSync(htmlPath, html);
     const fileUrl = pathToFileURL(htmlPath).href;

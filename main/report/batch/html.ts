@@ -6,7 +6,7 @@
 import { PROFILE_CAUTION } from '@shared/chemistry/profile';
 import { CHECK_MODULES } from '@shared/engine/checks';
 import { chartJsSource, taperlineVersion } from '../assets';
-import { escapeHtml as e, jsonForScript, scriptSafe, table } from '../html';
+import { escapeHtml as e, jsonForScript, reportHead, reportScripts, table } from '../html';
 import type { BatchSummary, JudgedRun } from '../judge-run';
 import { REPORT_CSS } from '../styles';
 import { BATCH_STRIP_SCRIPT } from './strip-script';
@@ -92,16 +92,10 @@ export function buildBatchReportHtml(
     ];
   });
   const stripHeight = Math.max(180, 60 + 16 * runs.length);
+  const scripts = reportScripts();
   return `<!doctype html>
 <html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:">
-<meta name="generator" content="Taperline ${e(taperlineVersion())}">
-<title>${e(title)}</title>
-<style>${REPORT_CSS}${BATCH_CSS}</style>
-</head>
+${reportHead({ title, css: REPORT_CSS + BATCH_CSS, version: taperlineVersion(), nonce: scripts.nonce })}
 <body>
 <header id="batch-title">
 <h1>${e(title)}</h1>
@@ -124,8 +118,8 @@ ${strips.map((s) => `<div class="chart"><h3>${e(s.title)}</h3><div class="chart-
 </section>
 <footer>Taperline ${e(taperlineVersion())} · generated ${e(generatedAt.toISOString())}</footer>
 <script type="application/json" id="batch-data">${jsonForScript({ strips })}</script>
-<script>${scriptSafe(chartJsSource())}</script>
-<script>${scriptSafe(BATCH_STRIP_SCRIPT)}</script>
+${scripts.script(chartJsSource())}
+${scripts.script(BATCH_STRIP_SCRIPT)}
 </body>
 </html>
 `;
