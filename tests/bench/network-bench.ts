@@ -28,11 +28,12 @@ import { join } from 'node:path';
 import WebSocket from 'ws';
 import { topicLevel } from '@shared/sources/mqtt-topics';
 import { createBroker } from '../integration/mosquitto';
+import { projectRoot } from './bundle-bench';
 
 const QUICK = process.argv.includes('--quick');
 const WINDOW_S = QUICK ? 8 : 20;
 const RATE_HZ = 10;
-const CLI = join(__dirname, '..', '..', 'dist', 'cli.cjs');
+const CLI = join(projectRoot(), 'dist', 'cli.cjs');
 const TICK_S = 0.01; // USER_HZ = 100 on Linux (proc(5))
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 

@@ -5,11 +5,14 @@
  *      through replay's own loop (main/cli/replay-run.ts: frame, parse, engine, NDJSON events
  *      written to /dev/null), and (b') the same lines pushed as text (the path of live ports),
  *      all measured in this run, with their ratios;
- *  (c) peak resident memory of `taperline replay --events` on a 10,000,000-line file;
+ *  (c) the commands as a person runs them, start-up included: `taperline replay FILE --events`
+ *      against `node -e` counting the same file's lines with readline, side by side on a
+ *      10,000,000-line file (the 1 M file with --quick), with the peak resident memory of each;
  *  (d) where replay's time goes: the same lines held in memory and run through framing alone,
  *      the parser alone, and parser + pipeline (plausibility, time base, engine), as CPU
  *      nanoseconds per line beside replay's and readline's own.
- * Usage: node --import tsx tests/bench/replay-bench.ts [--quick]   (--quick skips (c))
+ * `npm run bench` runs this file bundled like the shipped CLI (./bundle-bench.ts).
+ * By hand: node --import tsx tests/bench/run-one.ts replay-bench [--quick]
  */
 import { spawn } from 'node:child_process';
 import {
@@ -25,6 +28,7 @@ import {
   writeSync,
 } from 'node:fs';
 import { join } from 'node:path';
+import { projectRoot } from './bundle-bench';
 import { createInterface } from 'node:readline';
 import { parseProfile } from '@shared/chemistry/profile';
 import { createPipeline } from '@shared/engine/pipeline';
@@ -35,7 +39,7 @@ import { openLineInput } from '../../main/cli/line-input';
 import { EventSink, replayInto } from '../../main/cli/replay-run';
 import { getScenario, simulatedLines } from '../../main/simulator';
 
-const root = join(__dirname, '..', '..');
+const root = projectRoot();
 const benchDir = join(root, '.bench');
 const SCENARIO = 'bench-liion-3s';
 
@@ -243,32 +247,87 @@ function ratio(label: string, a: Rate, b: Rate, target?: number): void {
   console.log(`  ratio ${label}: ${wall.toFixed(2)} wall, ${cpu.toFixed(2)} CPU${verdict}`);
 }
 
-/** Peak RSS of a child replaying `path`, read from /proc while it runs (VmHWM is the high-water mark). */
-async function peakRssOfReplay(
-  path: string,
-  profilePath: string,
-): Promise<{ peakMb: number; seconds: number; code: number | null }> {
+/** The reference as a command of its own: node:readline counting a file's lines. */
+const READLINE_COUNT = [
+  '-e',
+  "const rl = require('node:readline').createInterface({ input: require('node:fs').createReadStream(process.argv[1], { highWaterMark: 1 << 20 }), crlfDelay: Infinity });" +
+    " let n = 0; rl.on('line', () => n++); rl.on('close', () => console.log(n));",
+];
+
+interface ChildRun {
+  seconds: number;
+  cpuS: number;
+  peakMb: number;
+  code: number | null;
+}
+
+/**
+ * A child process run to its end: wall seconds, CPU seconds (from /proc, user + system)
+ * and peak RSS (VmHWM, the kernel's high-water mark), read while it runs.
+ */
+async function runChild(args: string[]): Promise<ChildRun> {
   const started = performance.now();
-  const child = spawn(
-    process.execPath,
-    [join(root, 'bin', 'taperline.cjs'), 'replay', path, '--profile', profilePath, '--events'],
-    {
-      stdio: ['ignore', openSync('/dev/null', 'w'), 'inherit'],
-    },
-  );
+  const child = spawn(process.execPath, args, { stdio: ['ignore', openSync('/dev/null', 'w'), 'inherit'] });
   let peakKb = 0;
+  let cpuTicks = 0;
+  const ticksPerS = 100; // USER_HZ on Linux
   const poll = setInterval(() => {
     try {
       const status = readFileSync(`/proc/${child.pid}/status`, 'utf8');
       const match = /VmHWM:\s+(\d+) kB/.exec(status);
       if (match) peakKb = Math.max(peakKb, Number(match[1]));
+      const stat = readFileSync(`/proc/${child.pid}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      cpuTicks = Number(fields[11]) + Number(fields[12]); // utime + stime
     } catch {
       /* the child has just exited */
     }
-  }, 50);
+  }, 20);
   const code = await new Promise<number | null>((resolve) => child.on('exit', resolve));
   clearInterval(poll);
-  return { peakMb: peakKb / 1024, seconds: (performance.now() - started) / 1000, code };
+  return {
+    seconds: (performance.now() - started) / 1000,
+    cpuS: cpuTicks / ticksPerS,
+    peakMb: peakKb / 1024,
+    code,
+  };
+}
+
+/**
+ * (c) The commands as a person runs them, start-up and cold compiler included: `taperline
+ * replay FILE --events` against a readline line count of the same file, in interleaved
+ * rounds, with the peak memory of each.
+ */
+async function commandsSideBySide(path: string, lineCount: number, profilePath: string, rounds: number) {
+  const replayArgs = [
+    join(root, 'bin', 'taperline.cjs'),
+    'replay',
+    path,
+    '--profile',
+    profilePath,
+    '--events',
+  ];
+  const replays: ChildRun[] = [];
+  const counts: ChildRun[] = [];
+  for (let r = 0; r < rounds; r++) {
+    counts.push(await runChild([...READLINE_COUNT, path]));
+    replays.push(await runChild(replayArgs));
+  }
+  const show = (label: string, runs: ChildRun[]) => {
+    const wallS = median(runs.map((x) => x.seconds));
+    const peakMb = Math.max(...runs.map((x) => x.peakMb));
+    console.log(
+      `  ${label.padEnd(48)} ${(lineCount / wallS / 1e6).toFixed(2).padStart(5)} M lines/s wall ` +
+        `(${wallS.toFixed(2)} s, median of ${rounds}), peak RSS ${peakMb.toFixed(1)} MB, exit ${runs.map((x) => x.code).join('/')}`,
+    );
+    return { wallS, peakMb };
+  };
+  const count = show('(c) node -e readline line count (reference)', counts);
+  const replay = show('(c) taperline replay FILE --events', replays);
+  console.log(
+    `  ratio taperline replay / readline command: ${(count.wallS / replay.wallS).toFixed(2)} wall; ` +
+      `replay peak RSS ${replay.peakMb.toFixed(1)} MB (target < 150 MB: ${replay.peakMb < 150 ? 'met' : 'NOT met'})`,
+  );
 }
 
 async function main(): Promise<void> {
@@ -326,17 +385,18 @@ async function main(): Promise<void> {
   ]);
   ratio('text path / node:readline', textRates.get(TEXT) as Rate, textRates.get(READLINE) as Rate);
 
-  if (quick) return;
+  if (quick) {
+    console.log('replay benchmark: the commands themselves on the 1,000,000-line log (--quick)...');
+    await commandsSideBySide(log1m, 1_000_000, profilePath, 3);
+    return;
+  }
   const log10m = join(benchDir, 'replay-10m.log');
   console.log(
-    'replay benchmark: writing a 10,000,000-line log (the 1 M log ten times, about 0.9 GB) for the memory check...',
+    'replay benchmark: the commands themselves on a 10,000,000-line log (the 1 M log ten times, about 0.9 GB)...',
   );
-  await repeatLog(log1m, log10m, 10);
-  const rss = await peakRssOfReplay(log10m, profilePath);
-  console.log(
-    `  (c) taperline replay --events on 10,000,000 lines: peak RSS ${rss.peakMb.toFixed(1)} MB ` +
-      `(target < 150 MB), ${rss.seconds.toFixed(1)} s wall, ${(10 / rss.seconds).toFixed(2)} M lines/s, exit ${rss.code}`,
-  );
+  if (!existsSync(log10m) || statSync(log10m).size !== statSync(log1m).size * 10)
+    await repeatLog(log1m, log10m, 10);
+  await commandsSideBySide(log10m, 10_000_000, profilePath, 3);
 }
 
 main().catch((err: unknown) => {

@@ -1,10 +1,12 @@
 /**
  * `npm run bench`: every benchmark in turn, each in its own process so one's heap and JIT
- * state do not colour the next. They print figures; nothing here passes or fails on time.
- * Extra arguments (e.g. --quick) are passed to each.
+ * state do not colour the next, each bundled first like the shipped CLI (./bundle-bench).
+ * They print figures; nothing here passes or fails on time. Extra arguments (e.g. --quick)
+ * are passed to each.
  */
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
+import { bundleBench } from './bundle-bench';
 
 const BENCHES = [
   'parse-bench.ts',
@@ -18,16 +20,22 @@ const BENCHES = [
   'checks-bench.ts',
   'network-bench.ts',
 ];
-const extra = process.argv.slice(2);
-let failed = 0;
-for (const bench of BENCHES) {
-  console.log(`\n=== ${bench} ===`);
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(__dirname, bench), ...extra], {
-    stdio: 'inherit',
-  });
-  if (r.status !== 0) {
-    failed++;
-    console.log(`${bench} exited with ${r.status ?? r.signal}`);
+async function main(): Promise<void> {
+  const extra = process.argv.slice(2);
+  let failed = 0;
+  for (const bench of BENCHES) {
+    console.log(`\n=== ${bench} ===`);
+    const bundled = await bundleBench(join(__dirname, bench));
+    const r = spawnSync(process.execPath, [bundled, ...extra], { stdio: 'inherit' });
+    if (r.status !== 0) {
+      failed++;
+      console.log(`${bench} exited with ${r.status ?? r.signal}`);
+    }
   }
+  process.exitCode = failed ? 1 : 0;
 }
-process.exitCode = failed ? 1 : 0;
+
+main().catch((err: unknown) => {
+  console.error(err);
+  process.exitCode = 1;
+});
