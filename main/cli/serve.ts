@@ -15,7 +15,7 @@ import { stationsFromOptions } from '../app/station-options';
 import { RecorderOpenError } from '../recorder/errors';
 import { startServer } from '../server';
 import { UsageError } from './errors';
-import { portNumber, positiveInteger, positiveNumber } from './options';
+import { baudRate, portNumber, positiveNumber } from './options';
 
 /** Default port of `taperline serve` (unassigned by IANA; any free port works with --port). */
 export const DEFAULT_SERVE_PORT = 4870;
@@ -111,7 +111,7 @@ export function backendOptionsFrom(options: ServeOptions): BackendOptions {
   try {
     const stations = stationsFromOptions({
       ports,
-      baudRate: positiveInteger('--baud', options.baud, '115200'),
+      baudRate: baudRate('--baud', options.baud),
       profilePath: options.profile,
       simulate,
       speedup: options.speedup === undefined ? undefined : positiveNumber('--speedup', options.speedup),

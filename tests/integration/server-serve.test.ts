@@ -105,7 +105,7 @@ test(
 );
 
 test(
-  'serve refuses an unknown scenario and a port station without a profile, in one line',
+  'serve refuses an unknown scenario, a port station without a profile and an impossible baud rate, in one line',
   { timeout: 60_000 },
   async () => {
     const unknown = startCli(['serve', '--port', '0', '--no-record', '--simulate', 'moon-base']);
@@ -114,6 +114,24 @@ test(
     const noProfile = startCli(['serve', '--port', '0', '--no-record', '--station-port', '/dev/ttyUSB9']);
     assert.equal(await noProfile.exit, 2);
     assert.match(noProfile.stderr(), /--station-port needs --profile/);
+    // The same baud rule as `record`: no serial port runs at 10 Gbaud.
+    const badBaud = startCli([
+      'serve',
+      '--port',
+      '0',
+      '--no-record',
+      '--station-port',
+      '/dev/ttyUSB9',
+      '--profile',
+      'p.json',
+      '--baud',
+      '1e10',
+    ]);
+    assert.equal(await badBaud.exit, 2);
+    assert.match(
+      badBaud.stderr(),
+      /^taperline: --baud must be a baud rate, a whole number from 1 to 12000000 \(e\.g\. 115200\) \(got "1e10"\)$/m,
+    );
   },
 );
 
