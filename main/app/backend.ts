@@ -28,6 +28,7 @@ export interface BackendOptions {
   exportMode?: AppServiceOptions['exportMode'];
   writeCsvFile?: AppServiceOptions['writeCsvFile'];
   writeReportFile?: AppServiceOptions['writeReportFile'];
+  writeBatchFile?: AppServiceOptions['writeBatchFile'];
 }
 
 /** Remote stations a serve may show besides its own (four benches of 60). */
@@ -88,6 +89,7 @@ export async function startBackend(options: BackendOptions): Promise<Backend> {
     exportMode: options.exportMode,
     writeCsvFile: options.writeCsvFile,
     writeReportFile: options.writeReportFile,
+    writeBatchFile: options.writeBatchFile,
   });
   const keeper = rackPath
     ? keepSavedRack(stations, rackPath, (message) =>

@@ -20,7 +20,7 @@ export function reportChildFatal(message: string): Promise<void> {
 }
 
 export async function runChildBackend(
-  options: Omit<BackendOptions, 'exportMode' | 'writeCsvFile' | 'writeReportFile'>,
+  options: Omit<BackendOptions, 'exportMode' | 'writeCsvFile' | 'writeReportFile' | 'writeBatchFile'>,
 ) {
   if (!process.send)
     throw new Error('--electron-child needs an IPC channel: it is started by the Electron app');
@@ -63,6 +63,12 @@ export async function runChildBackend(
           );
         }
       },
+      writeBatchFile: async (batchId, path, csv) =>
+        writeFile(
+          path,
+          realLibraries.batchReportFile(backend!.recorder!, batchId, csv ? 'csv' : 'html'),
+          'utf8',
+        ),
       writeReportFile: async (runId, path, pdf) => {
         const html = await realLibraries.runReportHtml(backend!.recorder!, runId);
         if (!pdf) return writeFile(path, html, 'utf8');

@@ -1,5 +1,7 @@
-/** File names offered for a run's CSV export and Run report (save dialog and HTTP download). */
+/** File names offered for a run's CSV export, Run report and Batch report (save dialog and HTTP download). */
 import type { RunRow } from '@shared/ipc/payloads';
+
+export { batchFileStem } from '@shared/display/file-names';
 
 /** Longest station part of a name; a serial path given to `taperline record` can be long. */
 const MAX_STATION_CHARS = 64;

@@ -1,7 +1,7 @@
 /**
  * The pieces of other layers the service calls, gathered in one place so the service reads
- * as wiring: profile parsing, the pipeline (for previews), diagnosis, scenarios, ports and
- * run reports. `realLibraries` binds the project's own implementations.
+ * as wiring: profile parsing, the pipeline (for previews), diagnosis, scenarios, ports, run
+ * and batch reports. `realLibraries` binds the project's own implementations.
  */
 import { parseProfile } from '@shared/chemistry/profile';
 import type { ProfileResult, ResolvedProfile } from '@shared/chemistry/types';
@@ -14,6 +14,7 @@ import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { buildRunReport, renderReportPdf } from '../report';
+import { recordedBatchFile } from '../report/batch';
 import type { RunReader } from '../recorder/types';
 
 export interface AppLibraries {
@@ -27,6 +28,8 @@ export interface AppLibraries {
   runReportHtml(recorder: RunReader, runId: number): Promise<string>;
   /** The same report printed to PDF by headless Chromium (web mode; Electron prints itself). */
   runReportPdf(recorder: RunReader, runId: number): Promise<Buffer>;
+  /** A burn-in batch's Batch report (HTML) or batch table (CSV), judged from the recording. */
+  batchReportFile(recorder: RunReader, batchId: string, what: 'html' | 'csv'): string;
 }
 
 export const realLibraries: AppLibraries = {
@@ -42,6 +45,7 @@ export const realLibraries: AppLibraries = {
   listScenarios: () => listScenarios().map((s) => ({ ...s, profile: getScenario(s.name).profile })),
   listPorts: async () => [...(await listPorts())],
   runReportHtml: async (recorder, runId) => buildRunReport(recorder, runId),
+  batchReportFile: recordedBatchFile,
   async runReportPdf(recorder, runId) {
     const dir = await mkdtemp(join(tmpdir(), 'taperline-report-'));
     try {

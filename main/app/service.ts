@@ -12,13 +12,14 @@ import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { RunReader } from '../recorder/types';
 import type { StationManager, StationSnapshot } from '../station/types';
 import { AckBook, type AlarmAck } from './acks';
-import { runFileStem } from './file-names';
+import { batchFileStem, runFileStem } from './file-names';
 import { StationHistory } from './history';
 import { PushBatcher } from './push-batcher';
 import { realLibraries, type AppLibraries } from './libraries';
 import { SweepWatch } from './sweep-watch';
 import { LiveChecks } from './live-checks';
 import { runChecks } from '@shared/engine/checks';
+import { BatchRefusal, batchRunsOf } from '../report/batch';
 
 /** How exports and reports leave the app. */
 export type ExportMode =
@@ -34,6 +35,8 @@ export interface AppServiceOptions {
   /** Write a run's CSV / report to a chosen path (Electron mode). */
   writeCsvFile?: (runId: number, path: string) => Promise<void>;
   writeReportFile?: (runId: number, path: string, pdf: boolean) => Promise<void>;
+  /** Write a burn-in batch's Batch report (HTML, or its CSV table) to a chosen path (Electron mode). */
+  writeBatchFile?: (batchId: string, path: string, csv: boolean) => Promise<void>;
   /** Start a station that replays a recorded run (`runs.replay`); absent = not offered. */
   replayRun?: (runId: number, speed: number | 'max') => Promise<StationSnapshot>;
   libraries?: AppLibraries;
@@ -193,6 +196,27 @@ export function createAppService(options: AppServiceOptions): AppService {
     const path = await exportMode.choosePath(`${runFileStem(run)}.${what}`, what);
     if (path === null) return { cancelled: true };
     await write(path);
+    return { savedTo: path };
+  };
+
+  const exportBatch = async (batchId: string, csv: boolean): Promise<ExportResult> => {
+    // Checked before anything is offered, so a batch that cannot be judged is refused here
+    // in words, not as a failed download.
+    try {
+      batchRunsOf(needRecorder(), batchId);
+    } catch (err) {
+      if (err instanceof BatchRefusal) throw new RequestError(err.message);
+      throw err;
+    }
+    if (exportMode.kind === 'web') {
+      return { url: `/api/batches/${encodeURIComponent(batchId)}/${csv ? 'batch.csv' : 'report.html'}` };
+    }
+    const write = options.writeBatchFile;
+    if (!write) throw new RequestError('saving a Batch report is not offered in this window');
+    const what = csv ? 'csv' : 'html';
+    const path = await exportMode.choosePath(`${batchFileStem(batchId)}.${what}`, what);
+    if (path === null) return { cancelled: true };
+    await write(batchId, path, csv);
     return { savedTo: path };
   };
 
@@ -382,6 +406,7 @@ export function createAppService(options: AppServiceOptions): AppService {
         pdf ? 'pdf' : 'html',
         options.writeReportFile && ((path) => options.writeReportFile!(runId, path, pdf === true)),
       ),
+    'batches.report': ({ batchId, csv }: P<'batches.report'>) => exportBatch(batchId, csv === true),
     'runs.replay': ({ runId, speed }: P<'runs.replay'>) => {
       needRun(runId);
       if (!options.replayRun)

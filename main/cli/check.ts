@@ -9,7 +9,7 @@ import type { Command } from 'commander';
 import type { ResolvedProfile } from '@shared/chemistry/types';
 import type { Check, Verdict } from '@shared/engine/checks';
 import { collectRun } from '../report/collect-run';
-import { judgeRun, summarizeBatch, type BatchSummary, type JudgedRun } from '../report/judge-run';
+import { byBoard, judgeRun, summarizeBatch, type BatchSummary, type JudgedRun } from '../report/judge-run';
 import { writeBatchReport } from '../report/batch';
 import { UsageError } from './errors';
 import { openLineInput } from './line-input';
@@ -71,9 +71,7 @@ async function runCheck(files: string[], options: CheckOptions): Promise<number>
   if (judged.length > 1) {
     // One line per board, in board order (runs without a board id last, by source).
     const order = judged.map((j, i) => ({ j, t: targets[i] }));
-    order.sort((a, b) =>
-      (a.j.report.board ?? '\uffff' + a.j.source).localeCompare(b.j.report.board ?? '\uffff' + b.j.source),
-    );
+    order.sort((a, b) => byBoard(a.j, b.j));
     judged.splice(0, judged.length, ...order.map((o) => o.j));
     targets.splice(0, targets.length, ...order.map((o) => o.t));
   }

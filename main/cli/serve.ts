@@ -171,6 +171,9 @@ async function serve(options: ServeOptions): Promise<void> {
       reportPdf: backend.recorder
         ? (runId) => realLibraries.runReportPdf(backend.recorder!, runId)
         : undefined,
+      batchFile: backend.recorder
+        ? async (batchId, what) => realLibraries.batchReportFile(backend.recorder!, batchId, what)
+        : undefined,
     });
   } catch (err) {
     await backend.stop();

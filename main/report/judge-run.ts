@@ -41,6 +41,11 @@ export function judgeRun(
   };
 }
 
+/** Board order of a batch table: by board id, runs without one last (by source). */
+export function byBoard(a: JudgedRun, b: JudgedRun): number {
+  return (a.report.board ?? '\uffff' + a.source).localeCompare(b.report.board ?? '\uffff' + b.source);
+}
+
 export interface BatchSummary {
   boards: number;
   pass: number;

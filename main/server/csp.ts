@@ -41,18 +41,22 @@ export const SECURITY_HEADERS: Record<string, string> = {
 };
 
 /**
- * The policy of a served Run report. The report is one self-contained file that draws its
- * charts with inline script and styles (its own <meta> policy says the same) and loads
- * nothing; `sandbox` gives it an opaque origin, so even its own script cannot reach this
- * server's API or cookie.
+ * The policy of a served report (Run or Batch). The report is one self-contained file that
+ * draws its charts with inline scripts carrying the page's one-time nonce (its own <meta>
+ * policy says the same) and loads nothing; `sandbox` gives it an opaque origin, so even its
+ * own script cannot reach this server's API or cookie.
  */
-export const REPORT_CSP = [
-  "default-src 'none'",
-  "script-src 'unsafe-inline'",
-  "style-src 'unsafe-inline'",
-  'img-src data:',
-  "base-uri 'none'",
-  "form-action 'none'",
-  "frame-ancestors 'none'",
-  'sandbox allow-scripts',
-].join('; ');
+export function reportCsp(html: string): string {
+  const nonce = /script-src 'nonce-([A-Za-z0-9+/=]+)'/.exec(html)?.[1];
+  return [
+    "default-src 'none'",
+    // A page without a nonce runs no script at all.
+    nonce ? `script-src 'nonce-${nonce}'` : "script-src 'none'",
+    "style-src 'unsafe-inline'",
+    'img-src data:',
+    "base-uri 'none'",
+    "form-action 'none'",
+    "frame-ancestors 'none'",
+    'sandbox allow-scripts',
+  ].join('; ');
+}

@@ -12,7 +12,7 @@ import { WS_PATH } from '@shared/ipc/channels';
 import type { PushEnvelope } from '@shared/ipc/pushes';
 import type { RunReader } from '../recorder/types';
 import { answerText, errorText } from '../app/dispatch';
-import { runFileStem } from '../app/file-names';
+import { batchFileStem, runFileStem } from '../app/file-names';
 import type { AppService } from '../app/service';
 import {
   createAccessPolicy,
@@ -22,7 +22,7 @@ import {
   TOKEN_QUERY,
   type AccessPolicy,
 } from './access';
-import { contentSecurityPolicy, REPORT_CSP, SECURITY_HEADERS } from './csp';
+import { contentSecurityPolicy, reportCsp, SECURITY_HEADERS } from './csp';
 import { contentTypeOf, resolveStaticPath, staysInside } from './static-files';
 
 /** Largest WebSocket message accepted: requests are small; a profile preview is the biggest. */
@@ -44,6 +44,8 @@ export interface ServerOptions {
   reportHtml?: (runId: number) => Promise<string>;
   /** For `/api/runs/<id>/report.pdf`: the report printed to PDF. */
   reportPdf?: (runId: number) => Promise<Buffer>;
+  /** For `/api/batches/<id>/report.html` and `/batch.csv`: a burn-in batch's Batch report. */
+  batchFile?: (batchId: string, what: 'html' | 'csv') => Promise<string>;
 }
 
 export interface RunningServer {
@@ -83,6 +85,7 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
       recorder: options.recorder ?? null,
       reportHtml: options.reportHtml,
       reportPdf: options.reportPdf,
+      batchFile: options.batchFile,
     }).catch((err: unknown) => {
       if (!res.headersSent) sendText(res, 500, `internal error: ${errorText(err)}`);
       else res.destroy();
@@ -167,9 +170,12 @@ interface HttpContext {
   recorder: RunReader | null;
   reportHtml: ((runId: number) => Promise<string>) | undefined;
   reportPdf: ((runId: number) => Promise<Buffer>) | undefined;
+  batchFile: ((batchId: string, what: 'html' | 'csv') => Promise<string>) | undefined;
 }
 
 const RUN_DOWNLOAD = /^\/api\/runs\/(\d{1,12})\/(export\.csv|report\.html|report\.pdf)$/;
+/** A batch id is 1-64 printable ASCII characters, percent-encoded in the path. */
+const BATCH_DOWNLOAD = /^\/api\/batches\/([^/]{1,200})\/(report\.html|batch\.csv)$/;
 
 async function handleHttp(req: IncomingMessage, res: ServerResponse, ctx: HttpContext): Promise<void> {
   const url = requestUrl(req);
@@ -190,6 +196,8 @@ async function handleHttp(req: IncomingMessage, res: ServerResponse, ctx: HttpCo
   const rawPath = (req.url ?? '/').split('?')[0];
   const download = RUN_DOWNLOAD.exec(rawPath);
   if (download) return serveRunDownload(res, ctx, Number(download[1]), download[2]);
+  const batch = BATCH_DOWNLOAD.exec(rawPath);
+  if (batch) return serveBatchDownload(res, ctx, batch[1], batch[2] === 'batch.csv' ? 'csv' : 'html');
   if (rawPath.startsWith('/api/')) return sendText(res, 404, 'no such API path');
 
   const resolved = resolveStaticPath(ctx.rendererDir, rawPath);
@@ -256,11 +264,49 @@ async function serveRunDownload(
   const html = await ctx.reportHtml(runId);
   res.writeHead(200, {
     'Content-Type': 'text/html; charset=utf-8',
-    'Content-Security-Policy': REPORT_CSP,
+    'Content-Security-Policy': reportCsp(html),
     'Content-Disposition': `inline; filename="${stem}.html"`,
     'Cache-Control': 'no-store',
   });
   res.end(html);
+}
+
+async function serveBatchDownload(
+  res: ServerResponse,
+  ctx: HttpContext,
+  encodedId: string,
+  what: 'html' | 'csv',
+): Promise<void> {
+  let batchId: string;
+  try {
+    batchId = decodeURIComponent(encodedId);
+  } catch {
+    return sendText(res, 400, 'the batch id in the path is not valid percent-encoding');
+  }
+  if (!/^[!-~]{1,64}$/.test(batchId)) return sendText(res, 400, 'a batch id is 1-64 printable characters');
+  if (!ctx.batchFile) return sendText(res, 404, 'batch reports are not offered by this server');
+  let text: string;
+  try {
+    text = await ctx.batchFile(batchId, what);
+  } catch (err) {
+    return sendText(res, 404, errorText(err));
+  }
+  const stem = batchFileStem(batchId);
+  if (what === 'csv') {
+    res.writeHead(200, {
+      'Content-Type': 'text/csv; charset=utf-8',
+      'Content-Disposition': `attachment; filename="${stem}.csv"`,
+      'Cache-Control': 'no-store',
+    });
+  } else {
+    res.writeHead(200, {
+      'Content-Type': 'text/html; charset=utf-8',
+      'Content-Security-Policy': reportCsp(text),
+      'Content-Disposition': `inline; filename="${stem}.html"`,
+      'Cache-Control': 'no-store',
+    });
+  }
+  res.end(text);
 }
 
 /**

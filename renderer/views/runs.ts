@@ -1,8 +1,9 @@
 /**
  * Runs view: every recorded run with station, profile, start, duration, end reason and Ah;
  * open one in the Bench view, replay it as a station, export its CSV, save its Run report,
- * delete it (after a confirmation in place).
+ * delete it (after a confirmation in place); start a burn-in batch and save its Batch report.
  */
+import { batchFileStem } from '@shared/display/file-names';
 import type { Api } from '../api';
 import { button, h } from '../dom';
 import { formatClock, formatDuration, formatNumber } from '../format';
@@ -41,6 +42,8 @@ export class RunsView implements View {
     maxlength: '64',
     placeholder: 'e.g. B7',
   });
+  private readonly batchReportSelect = h('select', { id: 'batch-report-id' });
+  private readonly batchReportHost: HTMLElement;
   private readonly boardFilter = h('input', {
     id: 'runs-board-filter',
     type: 'search',
@@ -81,6 +84,7 @@ export class RunsView implements View {
     });
     this.overlayBtn.disabled = true;
     this.packSelect.addEventListener('change', () => this.renderPackChoices());
+    this.batchReportHost = this.batchReportTools();
     root.append(
       h(
         'div',
@@ -103,6 +107,7 @@ export class RunsView implements View {
           this.boardFilter,
         ),
         this.batchForm(),
+        this.batchReportHost,
       ),
       this.filterBar,
       h(
@@ -181,6 +186,7 @@ export class RunsView implements View {
       this.runs = readRuns(await this.api.request('runs.list', {})).sort((a, b) => b.startRxS - a.startRxS);
       this.renderTable();
       this.renderPackChoices();
+      this.renderBatchChoices();
     } catch (err) {
       this.tableHost.replaceChildren(
         h('p', { class: 'error-text' }, `The run list could not be read: ${errorText(err)}`),
@@ -356,6 +362,52 @@ export class RunsView implements View {
     return form;
   }
 
+  /** The Batch report of a recorded batch: every run of it judged against its design values. */
+  private batchReportTools(): HTMLElement {
+    return h(
+      'div',
+      { class: 'runs-tools batch-report-tools' },
+      h('label', { for: 'batch-report-id', class: 'field-label' }, 'Batch report'),
+      this.batchReportSelect,
+      button('Batch report', () => void this.batchReport(false), { class: 'btn', id: 'batch-report' }),
+      button('Batch CSV', () => void this.batchReport(true), { class: 'btn', id: 'batch-csv' }),
+    );
+  }
+
+  /** The batches of the recorded runs, newest first, as choices for the Batch report. */
+  private renderBatchChoices(): void {
+    const keep = this.batchReportSelect.value;
+    const ids: string[] = [];
+    for (const run of this.runs) if (run.batchId && !ids.includes(run.batchId)) ids.push(run.batchId);
+    this.batchReportSelect.replaceChildren(
+      ...(ids.length
+        ? ids.map((id) => h('option', { value: id, selected: id === keep }, id))
+        : [h('option', { value: '' }, 'No recorded batch yet')]),
+    );
+    this.batchReportSelect.disabled = ids.length === 0;
+    for (const id of ['batch-report', 'batch-csv'])
+      (this.batchReportHost.querySelector(`#${id}`) as HTMLButtonElement | null)?.toggleAttribute(
+        'disabled',
+        ids.length === 0,
+      );
+  }
+
+  private async batchReport(csv: boolean): Promise<void> {
+    const batchId = this.batchReportSelect.value;
+    if (!batchId) {
+      this.status.textContent = 'No batch is chosen: start a burn-in batch first, then judge it here.';
+      return;
+    }
+    const stem = batchFileStem(batchId);
+    await this.deliver(
+      `batch ${batchId}`,
+      csv ? 'Batch CSV' : 'Batch report',
+      () => this.api.request('batches.report', { batchId, csv }),
+      csv ? `${stem}.csv` : `${stem}.html`,
+      csv ? 'batch-csv-link' : 'batch-report-link',
+    );
+  }
+
   private async startBatch(): Promise<void> {
     const batchId = this.batchInput.value.trim();
     if (!/^[!-~]{1,64}$/.test(batchId)) {
@@ -414,62 +466,64 @@ export class RunsView implements View {
 
   private async exportCsv(run: RunListRow): Promise<void> {
     await this.deliver(
-      run,
+      `run ${run.id}`,
       'CSV',
       () => this.api.request('runs.exportCsv', { runId: run.id }),
       `taperline-run-${run.id}.csv`,
+      'csv-link',
     );
   }
 
   private async report(run: RunListRow): Promise<void> {
     await this.deliver(
-      run,
+      `run ${run.id}`,
       'Run report',
       () => this.api.request('runs.report', { runId: run.id }),
       `taperline-run-${run.id}-report.html`,
+      'report-link',
     );
   }
 
   private async reportPdf(run: RunListRow): Promise<void> {
     await this.deliver(
-      run,
+      `run ${run.id}`,
       'Run report PDF',
       () => this.api.request('runs.report', { runId: run.id, pdf: true }),
       `taperline-run-${run.id}-report.pdf`,
+      'pdf-link',
     );
   }
 
-  /** Web mode answers with a URL (offered as a download link); Electron saves and says where. */
+  /**
+   * Web mode answers with a URL (offered as a download link); Electron saves and says where.
+   * `subject` names what the file is of ("run 12", "batch B7").
+   */
   private async deliver(
-    run: RunListRow,
+    subject: string,
     what: string,
     ask: () => Promise<unknown>,
     fileName: string,
+    linkId: string,
   ): Promise<void> {
-    this.status.textContent = `Preparing the ${what} of run ${run.id}…`;
+    this.status.textContent = `Preparing the ${what} of ${subject}…`;
     try {
       const result = (await ask()) as { url?: string; savedTo?: string; cancelled?: boolean };
       if (result.url) {
         const href = this.withToken(result.url);
         const link = h(
           'a',
-          {
-            href,
-            download: fileName,
-            class: 'download-link',
-            id: what === 'CSV' ? 'csv-link' : what === 'Run report PDF' ? 'pdf-link' : 'report-link',
-          },
-          `Download the ${what} of run ${run.id}`,
+          { href, download: fileName, class: 'download-link', id: linkId },
+          `Download the ${what} of ${subject}`,
         );
         this.status.replaceChildren(link);
         link.focus();
       } else if (result.savedTo) {
-        this.status.textContent = `The ${what} of run ${run.id} was saved to ${result.savedTo}.`;
+        this.status.textContent = `The ${what} of ${subject} was saved to ${result.savedTo}.`;
       } else {
-        this.status.textContent = `The ${what} of run ${run.id} was not saved (cancelled).`;
+        this.status.textContent = `The ${what} of ${subject} was not saved (cancelled).`;
       }
     } catch (err) {
-      this.status.textContent = `The ${what} of run ${run.id} could not be made: ${errorText(err)}`;
+      this.status.textContent = `The ${what} of ${subject} could not be made: ${errorText(err)}`;
     }
   }
 

@@ -112,6 +112,16 @@ export const requestSchemas = {
   'runs.exportCsv': z.object({ runId }).strict(),
   /** Run report (self-contained HTML): saved (Electron) or a download URL (web). */
   'runs.report': z.object({ runId, pdf: z.boolean().optional() }).strict(),
+  /**
+   * The Batch report of a burn-in batch (every recorded run of it judged against its profile's
+   * expect ranges): HTML, or with `csv` the batch table; saved (Electron) or a download URL (web).
+   */
+  'batches.report': z
+    .object({
+      batchId: z.string().regex(/^[!-~]{1,64}$/, '1-64 printable characters without spaces'),
+      csv: z.boolean().optional(),
+    })
+    .strict(),
   /** Replay a recorded run as a new simulated-time station (read again through the pipeline). */
   'runs.replay': z
     .object({ runId, speed: z.union([z.number().positive().max(100_000), z.literal('max')]) })

@@ -2,6 +2,8 @@
  * The Batch report of a 16-board burn-in (simulated boards, invented parts) in a real Chromium
  * (playwright-core): the yield, one row per board, one strip plot per measured value with the
  * design limits, no request beyond its own file. Screenshot: test-results/screenshots/batch-report.png.
+ * Then the same report as the app offers it: a batch recorded into the database of a real
+ * `taperline serve`, saved from the Runs view and opened.
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
@@ -17,6 +19,9 @@ import { CHROMIUM_ARGS } from '../../main/report';
 import { RunCollector } from '../../main/report/collect-run';
 import { judgeRun, summarizeBatch } from '../../main/report/judge-run';
 import { buildBatchReportHtml } from '../../main/report/batch';
+import { recordBatch } from '../integration/batch-fixture';
+import { screenshot } from './helpers/browser';
+import { pageUrl, startServe } from './helpers/serve';
 
 const CHROMIUM = '/usr/bin/chromium';
 
@@ -94,5 +99,53 @@ test(
     const shot = join('test-results', 'screenshots', 'batch-report.png');
     await page.screenshot({ path: shot, fullPage: true });
     assert.ok(existsSync(shot));
+  },
+);
+
+test(
+  'the Runs view saves the Batch report of a recorded batch: choose the batch, download, open it',
+  { skip: !existsSync(CHROMIUM) && 'no /usr/bin/chromium', timeout: 120_000 },
+  async (t) => {
+    const dir = mkdtempSync(join(tmpdir(), 'taperline-batch-app-'));
+    // Six boards of the same invented lot, recorded as stations of a batch would record them.
+    const boards = batchBoards(6, 7);
+    recordBatch(join(dir, 'runs.sqlite'), boards, 'B7', 2);
+    const serve = await startServe([], { dir });
+    t.after(() => serve.stop());
+    const browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
+    t.after(() => browser.close());
+    const page = await browser.newPage({ viewport: { width: 1440, height: 900 } });
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto(pageUrl(serve, 'runs'));
+    await page.locator('#view-runs tr[data-run]').first().waitFor({ timeout: 30_000 });
+    assert.equal(await page.locator('#batch-report-id').inputValue(), 'B7');
+    await page.locator('#batch-report').click();
+    const link = page.locator('#batch-report-link');
+    await link.waitFor({ timeout: 60_000 });
+    assert.match((await link.textContent()) ?? '', /Batch report of batch B7/);
+    assert.equal(await link.getAttribute('download'), 'taperline-batch-B7.html');
+    await screenshot(page, 'runs-batch-report');
+
+    // The download opens as the self-contained report, its charts drawn under its own policy.
+    const href = new URL((await link.getAttribute('href'))!, serve.url).toString();
+    const report = await browser.newPage({ viewport: { width: 1200, height: 900 } });
+    report.on('pageerror', (e) => errors.push(e.message));
+    await report.goto(href);
+    await report.waitForFunction(() => document.body.hasAttribute('data-charts-ready'), undefined, {
+      timeout: 30_000,
+    });
+    const expectedPass = boards.filter((b) => truthInSpec(b.truth)).length;
+    assert.match(await report.locator('#batch-yield').innerText(), new RegExp(`${expectedPass} pass`));
+    assert.equal(await report.locator('#batch-boards tbody tr').count(), 6);
+    assert.deepEqual(errors, []);
+    await screenshot(report, 'batch-report-from-app');
+
+    await page.locator('#batch-csv').click();
+    const csvLink = page.locator('#batch-csv-link');
+    await csvLink.waitFor({ timeout: 60_000 });
+    const csv = await page.request.get(new URL((await csvLink.getAttribute('href'))!, serve.url).toString());
+    assert.equal(csv.status(), 200);
+    assert.equal((await csv.text()).trim().split('\n').length, 7);
   },
 );

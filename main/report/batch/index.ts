@@ -6,6 +6,7 @@ import { buildBatchReportHtml } from './html';
 
 export { batchCsv } from './csv';
 export { buildBatchReportHtml } from './html';
+export { BatchRefusal, batchRunsOf, judgeRecordedBatch, recordedBatchFile } from './recorded-batch';
 
 export function writeBatchReport(
   runs: readonly JudgedRun[],
