@@ -59,6 +59,38 @@ export function profileWarnings(typed: Record<string, unknown>): string[] {
     out.push(
       `A regulation voltage of ${typedReg} V/cell is above the ${chemistry} overvoltage limit of ${defaults.overvoltageVPerCell} V/cell.`,
     );
+  out.push(...designValueWarnings(typed.expect));
+  return out;
+}
+
+/** The board's design values (`expect`) with their form labels and units. */
+export const DESIGN_VALUES: readonly { key: string; label: string; unit: string }[] = [
+  { key: 'chargeCurrentA', label: 'Charge current (CC level)', unit: 'A' },
+  { key: 'regulationV', label: 'Regulation voltage (pack)', unit: 'V' },
+  { key: 'terminationA', label: 'Termination current', unit: 'A' },
+  { key: 'preconditionA', label: 'Precondition current', unit: 'A' },
+  { key: 'timerMin', label: 'Safety timer', unit: 'min' },
+  { key: 'efficiency', label: 'Efficiency', unit: '0..1' },
+  { key: 'tempRiseC', label: 'Temperature rise', unit: '°C' },
+  { key: 'inputV', label: 'Input voltage held', unit: 'V' },
+  { key: 'chargeTimeMin', label: 'Charge time', unit: 'min' },
+];
+
+/** A design value with one bound, or its bounds the wrong way round, is a slip worth saying. */
+function designValueWarnings(expect: unknown): string[] {
+  if (!expect || typeof expect !== 'object') return [];
+  const out: string[] = [];
+  for (const { key, label, unit } of DESIGN_VALUES) {
+    const range = (expect as Record<string, unknown>)[key];
+    if (!Array.isArray(range)) continue;
+    const [lo, hi] = [num(range[0]), num(range[1])];
+    if ((lo === null) !== (hi === null))
+      out.push(
+        `Design value ${label}: only the ${lo === null ? 'highest' : 'lowest'} value is typed; give both, a run passes between them.`,
+      );
+    else if (lo !== null && hi !== null && lo > hi)
+      out.push(`Design value ${label}: the lowest (${lo} ${unit}) is above the highest (${hi} ${unit}).`);
+  }
   return out;
 }
 

@@ -1,6 +1,6 @@
 /**
- * The profile editor: chemistry presets, cells, capacity, currents, limits and the field
- * mapping, turned into profile JSON (docs/profile.md). An empty box means "the chemistry's
+ * The profile editor: chemistry presets, cells, capacity, currents, limits, the board's design
+ * values and the field mapping, turned into profile JSON (docs/profile.md). An empty box means "the chemistry's
  * default"; what the user typed is sent as typed, so the backend's refusal names the key.
  */
 import { keysNotShown, withCarriedKeys } from './profile-carry';
@@ -10,7 +10,7 @@ import type { ResolvedProfile } from '@shared/chemistry/types';
 import { CHEMISTRIES } from '@shared/chemistry/types';
 import type { CanonicalField } from '@shared/telemetry/types';
 import { h } from '../dom';
-import { labelMessage, profileWarnings, timerHint } from './profile-checks';
+import { DESIGN_VALUES, labelMessage, profileWarnings, timerHint } from './profile-checks';
 
 interface NumberField {
   key: string;
@@ -184,6 +184,31 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     );
   });
 
+  const designRows = DESIGN_VALUES.map((f) => {
+    const bound = (i: 0 | 1) => {
+      const input = h('input', {
+        id: `${idPrefix}-expect-${f.key}-${i === 0 ? 'min' : 'max'}`,
+        type: 'text',
+        inputmode: 'decimal',
+        autocomplete: 'off',
+        'data-key': `expect.${f.key}.${i}`,
+        'aria-label': `${f.label}, ${i === 0 ? 'lowest' : 'highest'} [${f.unit}]`,
+      });
+      inputs.set(`expect.${f.key}.${i}`, input);
+      return input;
+    };
+    const err = h('span', { class: 'field-error', 'aria-live': 'polite' });
+    errors.set(`expect.${f.key}`, err);
+    return h(
+      'tr',
+      {},
+      h('th', { scope: 'row' }, f.label, h('span', { class: 'unit' }, ` [${f.unit}]`)),
+      h('td', {}, bound(0)),
+      h('td', {}, bound(1)),
+      h('td', {}, err),
+    );
+  });
+
   const caution = h(
     'div',
     { class: 'caution', role: 'note', 'aria-label': 'Safety caution' },
@@ -202,6 +227,12 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     const f = [...BASICS, ...LIMITS].find((x) => x.key === key);
     if (f) return f.label;
     if (key === 'tempWindowC') return 'Charge window';
+    const design = /^expect\.(\w+)(?:\.([01]))?$/.exec(key);
+    if (design) {
+      const label = DESIGN_VALUES.find((x) => x.key === design[1])?.label ?? design[1];
+      const side = design[2] === undefined ? '' : design[2] === '0' ? ', lowest' : ', highest';
+      return `Design value ${label}${side}`;
+    }
     if (key === 'name') return 'Profile name';
     if (key === 'chemistry') return 'Chemistry';
     const m = /^fields\.(\w+)(?:\.(key|unit))?$/.exec(key);
@@ -255,6 +286,33 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     ),
     h(
       'fieldset',
+      { class: 'design-values' },
+      h('legend', {}, 'Design values of the board (empty = not checked)'),
+      h(
+        'p',
+        { class: 'quiet design-note' },
+        'What the charger board was designed to do, from its schematic and its parts’ datasheets: every run is judged pass or fail against [lowest, highest]. Without better figures, regulation ±1 % and charge current ±10 % are the usual classes of charger ICs’ datasheets; your own datasheet wins.',
+      ),
+      h(
+        'table',
+        { class: 'mapping-table design-table' },
+        h(
+          'thead',
+          {},
+          h(
+            'tr',
+            {},
+            h('th', { scope: 'col' }, 'Value'),
+            h('th', { scope: 'col' }, 'Lowest'),
+            h('th', { scope: 'col' }, 'Highest'),
+            h('th', { scope: 'col' }, ''),
+          ),
+        ),
+        h('tbody', {}, ...designRows),
+      ),
+    ),
+    h(
+      'fieldset',
       {},
       h('legend', {}, 'Field mapping: which key the device prints for each field'),
       h(
@@ -298,6 +356,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
     'chemistry',
     'tempWindowC',
     'fields',
+    'expect',
     ...[...BASICS, ...LIMITS].map((f) => f.key),
   ]);
 
@@ -331,6 +390,14 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         fields[field] = { key: key || field, ...(unit ? { unit } : {}) };
       }
       if (Object.keys(fields).length) out.fields = fields;
+      const expect: Record<string, unknown[]> = {};
+      for (const f of DESIGN_VALUES) {
+        const lo = value(inputs.get(`expect.${f.key}.0`)!);
+        const hi = value(inputs.get(`expect.${f.key}.1`)!);
+        // One bound alone is sent as typed, so the refusal asks for the other.
+        if (lo !== undefined || hi !== undefined) expect[f.key] = [lo ?? null, hi ?? null];
+      }
+      if (Object.keys(expect).length) out.expect = expect;
       return withCarriedKeys(carried, out);
     },
     fill(profile) {
@@ -349,6 +416,15 @@ export function createProfileForm(idPrefix: string): ProfileForm {
           win[0] === null || win[0] === undefined ? '' : String(win[0]);
         (inputs.get('tempWindowC.1') as HTMLInputElement).value =
           win[1] === null || win[1] === undefined ? '' : String(win[1]);
+      }
+      const expect = (profile.expect ?? {}) as Record<string, unknown>;
+      for (const f of DESIGN_VALUES) {
+        const range = expect[f.key];
+        if (!Array.isArray(range)) continue;
+        range.slice(0, 2).forEach((v, i) => {
+          if (typeof v === 'number')
+            (inputs.get(`expect.${f.key}.${i}`) as HTMLInputElement).value = String(v);
+        });
       }
       const fields = (profile.fields ?? {}) as Record<string, { key?: string; unit?: string }>;
       for (const [field, m] of Object.entries(fields)) {
@@ -383,8 +459,10 @@ export function createProfileForm(idPrefix: string): ProfileForm {
         if (el) {
           el.textContent = message;
           const input =
+            inputs.get(key) ??
             inputs.get(k) ??
             inputs.get(`${k}.key`) ??
+            inputs.get(`${k}.0`) ??
             (k === 'tempWindowC' ? inputs.get('tempWindowC.0') : undefined);
           input?.setAttribute('aria-invalid', 'true');
           return;
@@ -420,6 +498,7 @@ export function resolvedToJson(p: ResolvedProfile): Record<string, unknown> {
     ...(p.timerMin !== null ? { timerMin: p.timerMin } : {}),
     tempWindowC: p.tempWindowC,
     ...(p.inputSetpointV !== null ? { inputSetpointV: p.inputSetpointV } : {}),
+    ...(p.expect ? { expect: p.expect } : {}),
     fields: p.fields,
   };
 }

@@ -2,7 +2,8 @@
  * Connect & profile in real Chromium at 1280×720 against a real `taperline serve`: a serial
  * path typed by hand (one end of a socat pty pair, as a test rig or a by-id link would be),
  * a charge window with one bound typed, a refusal worded with the field's label, warnings on
- * unusual values with the safety caution, and the safety timer's note on the LiFePO4 preset.
+ * unusual values with the safety caution, the safety timer's note on the LiFePO4 preset, and
+ * the board's design values (one bound alone warned and refused, both taken into the profile).
  */
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
@@ -72,6 +73,32 @@ test('a typed serial path and a checked profile', { timeout: 180_000 }, async (t
     await error.waitFor({ state: 'hidden' });
   });
 
+  await t.test(
+    'design values: one bound alone is warned and refused by its label; both are taken',
+    async () => {
+      await page.locator('#profile-expect-chargeCurrentA-min').fill('1.8');
+      const warnings = page.locator('#profile-warnings');
+      await warnings
+        .locator('.profile-warning', { hasText: 'Design value Charge current (CC level): only the lowest' })
+        .waitFor();
+      const error = page.locator('#profile-error');
+      await error.waitFor({ state: 'visible' });
+      assert.match(
+        (await error.textContent()) ?? '',
+        /^Profile refused: Design value Charge current \(CC level\), highest/,
+      );
+      assert.equal(
+        await page.locator('#profile-expect-chargeCurrentA-max').getAttribute('aria-invalid'),
+        'true',
+      );
+      await page.locator('#profile-expect-chargeCurrentA-max').fill('2.2');
+      await error.waitFor({ state: 'hidden' });
+      await page.waitForFunction(() => document.querySelector('#profile-warnings')?.hasAttribute('hidden'));
+      await page.locator('fieldset.design-values').scrollIntoViewIfNeeded();
+      await screenshot(page, 'connect-design-values');
+    },
+  );
+
   await t.test('a typed pty path becomes a station that reads lines', async () => {
     await page.locator('#source-kind-serial').check();
     await page.locator('#serial-path').fill(pty.host);
@@ -91,6 +118,11 @@ test('a typed serial path and a checked profile', { timeout: 180_000 }, async (t
       (await page.locator('#view-bench .source-state').textContent()) ?? '',
       /bench-port.*open|open/,
     );
+    // The design values typed above travel with the station's profile: its checks panel
+    // judges the charge current against 1.8–2.2 A.
+    const check = page.locator('#view-bench tr[data-check="chargeCurrentA"]');
+    await check.waitFor({ timeout: 30_000 });
+    assert.match((await check.locator('td').nth(1).textContent()) ?? '', /^1\.8–2\.2$/);
     await screenshot(page, 'connect-typed-path-bench');
   });
 });

@@ -57,3 +57,17 @@ test('a refusal names the field label, not the JSON key', () => {
   assert.equal(labelMessage('cells', 'cells: too big', label), 'Cells in series: too big');
   assert.equal(labelMessage(null, 'something', label), 'something');
 });
+
+test('a design value with one bound, or with its bounds swapped, is warned by its label', () => {
+  const w = profileWarnings({
+    chemistry: 'li-ion',
+    cells: 3,
+    expect: { chargeCurrentA: [0.9, null], regulationV: [12.73, 12.47], terminationA: [0.05, 0.15] },
+  });
+  assert.equal(w.length, 2, w.join(' | '));
+  assert.match(w[0], /^Design value Charge current \(CC level\): only the lowest value is typed; give both/);
+  assert.match(
+    w[1],
+    /^Design value Regulation voltage \(pack\): the lowest \(12\.73 V\) is above the highest \(12\.47 V\)/,
+  );
+});
