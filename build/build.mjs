@@ -41,6 +41,16 @@ await Promise.all([
     target: 'node20',
     external: nodeExternal,
   }),
+  // The live sweep analysis runs in a worker thread; its entry sits beside cli.cjs.
+  build({
+    ...common,
+    entryPoints: ['main/app/sweep-worker.ts'],
+    outfile: join(out, 'sweep-worker.cjs'),
+    platform: 'node',
+    format: 'cjs',
+    target: 'node20',
+    external: nodeExternal,
+  }),
   // A sandboxed preload may only require `electron` (and a few built-ins): bundle the rest in.
   build({
     ...common,

@@ -2,12 +2,15 @@
  * The live source sweep behind the Sweep view: keeps each station's recent source samples
  * (vin, iin and the `tpanel` channel), and for the stations a view watches runs the sweep
  * engine over them now and then and pushes the points with the engine's report. The analysis
- * runs in this process's event loop, so it is spaced by several times its own duration.
+ * runs in a worker thread (./sweep-analyst.ts), one at a time per station, spaced by several
+ * times its own duration so a long sweep does not keep a core busy.
  */
-import { analyseSweep, type SweepReport } from '@shared/engine/sweep';
+import type { SweepReport } from '@shared/engine/sweep';
 import type { TimedSample } from '@shared/engine/types';
 import type { SweepPayload } from '@shared/ipc/payloads';
 import type { ResolvedProfile } from '@shared/chemistry/types';
+import { SweepAnalyst } from './sweep-analyst';
+import type { SweepJob } from './sweep-job';
 
 /** Source samples kept per station: the last 40 minutes at up to one sample a second. */
 const KEEP_S = 40 * 60;
@@ -15,7 +18,7 @@ const MIN_STEP_S = 1;
 /** How often a watched station's points are pushed, and the least spacing of analyses. */
 const PUSH_EVERY_MS = 1000;
 const MIN_ANALYSIS_SPACING_MS = 2000;
-/** An analysis waits at least this many times its own last duration (keeps the loop responsive). */
+/** An analysis waits at least this many times its own last duration (bounds the CPU it takes). */
 const ANALYSIS_DUTY = 4;
 
 interface Kept {
@@ -32,12 +35,18 @@ interface Watched {
   lastAnalysisMs: number;
   lastDurationMs: number;
   report: SweepReport | null;
+  /** An analysis of this station is running. */
+  analysing: Promise<void> | null;
+  /** Bumped when the kept points stop applying (a new run): a running analysis is then stale. */
+  generation: number;
 }
 
 export interface SweepWatchOptions {
   profileOf(stationId: string): ResolvedProfile | null;
   emit(payload: SweepPayload): void;
   nowMs?: () => number;
+  /** Where analyses run; default a worker thread. */
+  analyst?: SweepAnalyst;
 }
 
 export class SweepWatch {
@@ -45,9 +54,11 @@ export class SweepWatch {
   private readonly watched = new Map<string, Watched>();
   private timer: NodeJS.Timeout | null = null;
   private readonly nowMs: () => number;
+  private readonly analyst: SweepAnalyst;
 
   constructor(private readonly options: SweepWatchOptions) {
     this.nowMs = options.nowMs ?? (() => performance.now());
+    this.analyst = options.analyst ?? new SweepAnalyst();
   }
 
   addSample(stationId: string, s: TimedSample): void {
@@ -73,15 +84,28 @@ export class SweepWatch {
     if (w) w.dirty = w.stale = true;
   }
 
-  /** Start watching; returns the payload now (analysed at once). */
-  watch(stationId: string): SweepPayload {
+  /** Start watching; resolves with the first payload, analysed over the points kept so far. */
+  async watch(stationId: string): Promise<SweepPayload> {
     let w = this.watched.get(stationId);
     if (!w) {
-      w = { dirty: false, stale: false, lastAnalysisMs: -Infinity, lastDurationMs: 0, report: null };
+      w = {
+        dirty: false,
+        stale: false,
+        lastAnalysisMs: -Infinity,
+        lastDurationMs: 0,
+        report: null,
+        analysing: null,
+        generation: 0,
+      };
       this.watched.set(stationId, w);
     }
     this.timer ??= setInterval(() => this.tick(), PUSH_EVERY_MS);
-    return this.payload(stationId, w, true);
+    // A running analysis may have started before the latest points: analyse again after it.
+    if (w.analysing) await w.analysing;
+    // A new run replacing the points meanwhile drops the result: analyse its points then.
+    for (let tries = 0; tries < 3 && (tries === 0 || !w.report); tries++) await this.analyse(stationId, w);
+    if (!w.report) throw new Error(`the sweep of station "${stationId}" kept changing run; ask again`);
+    return this.payload(stationId, w, w.report);
   }
 
   unwatch(stationId: string): void {
@@ -96,11 +120,15 @@ export class SweepWatch {
   forget(stationId: string, removed: boolean): void {
     this.kept.delete(stationId);
     const w = this.watched.get(stationId);
-    if (w) w.report = null;
+    if (w) {
+      w.report = null;
+      w.generation++;
+    }
     if (removed) this.unwatch(stationId);
   }
 
   close(): void {
+    this.analyst.close();
     if (this.timer) clearInterval(this.timer);
     this.timer = null;
     this.watched.clear();
@@ -110,34 +138,64 @@ export class SweepWatch {
   private tick(): void {
     for (const [stationId, w] of this.watched) {
       if (!w.dirty) continue;
-      w.dirty = false;
       const due =
         this.nowMs() - w.lastAnalysisMs >=
         Math.max(MIN_ANALYSIS_SPACING_MS, ANALYSIS_DUTY * w.lastDurationMs);
-      this.options.emit(this.payload(stationId, w, due));
+      if ((due || !w.report) && !w.analysing) {
+        // The points go out with the new report when it is ready.
+        w.dirty = false;
+        void this.analyse(stationId, w).then(
+          () => {
+            if (w.report && this.watched.get(stationId) === w)
+              this.options.emit(this.payload(stationId, w, w.report));
+          },
+          () => {
+            /* closed meanwhile */
+          },
+        );
+      } else if (w.report) {
+        w.dirty = false;
+        this.options.emit(this.payload(stationId, w, w.report));
+      }
     }
   }
 
-  private payload(stationId: string, w: Watched, analyse: boolean): SweepPayload {
+  /** One analysis of the points kept now; a result for points a new run replaced is dropped. */
+  private analyse(stationId: string, w: Watched): Promise<void> {
     const list = this.kept.get(stationId) ?? [];
     const profile = this.options.profileOf(stationId);
-    if (analyse || !w.report) {
-      const started = this.nowMs();
-      const samples: TimedSample[] = list.map((k) => ({
-        t: k.tS,
-        rxS: k.tS,
-        vinV: k.vinV,
-        iinA: k.iinA,
-        extra: (k.tpanelC === null ? {} : { tpanel: k.tpanelC }) as Record<string, number>,
-      }));
-      w.report = analyseSweep(samples, {
+    const job: SweepJob = {
+      tS: Float64Array.from(list, (k) => k.tS),
+      vinV: Float64Array.from(list, (k) => k.vinV),
+      iinA: Float64Array.from(list, (k) => k.iinA),
+      tpanelC: Float64Array.from(list, (k) => k.tpanelC ?? NaN),
+      options: {
         setpointV: profile?.inputSetpointV ?? null,
         panelTempCoeffPctPerC: profile?.panelTempCoeffPctPerC ?? null,
-      });
+      },
+    };
+    const generation = w.generation;
+    const started = this.nowMs();
+    const running = this.analyst.analyse(job).then((report) => {
       w.lastAnalysisMs = this.nowMs();
       w.lastDurationMs = w.lastAnalysisMs - started;
+      if (w.generation !== generation) {
+        w.dirty = true; // points of a new run arrived meanwhile: analyse those next
+        return;
+      }
+      w.report = report;
       w.stale = false;
-    }
+    });
+    const settled = running.finally(() => {
+      if (w.analysing === settled) w.analysing = null;
+    });
+    w.analysing = settled;
+    return settled;
+  }
+
+  private payload(stationId: string, w: Watched, report: SweepReport): SweepPayload {
+    const list = this.kept.get(stationId) ?? [];
+    const profile = this.options.profileOf(stationId);
     return {
       stationId,
       points: {
@@ -146,7 +204,7 @@ export class SweepWatch {
         pW: list.map((k) => k.vinV * k.iinA),
       },
       // The set point shown is the profile's now, even between analyses.
-      report: { ...w.report, setpointV: profile?.inputSetpointV ?? null },
+      report: { ...report, setpointV: profile?.inputSetpointV ?? null },
     };
   }
 }
