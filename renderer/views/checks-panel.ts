@@ -119,7 +119,7 @@ export class ChecksPanel {
         h(
           'p',
           { class: 'quiet' },
-          'No checks: the profile has no expect key with the board’s design limits.',
+          'No checks: the profile has no design values for the board (Connect & profile, “Design values of the board”).',
         ),
       );
       return;
