@@ -49,8 +49,19 @@ export class AlarmBook {
   private readonly active: (AlarmEvent | null)[] = ALARM_CODES.map(() => null);
   private readonly raiseSince = new Float64Array(ALARM_CODES.length).fill(NaN);
   private readonly clearSince = new Float64Array(ALARM_CODES.length).fill(NaN);
-  private readonly raiseAfter = ALARM_CODES.map((c) => ALARM_RULES[c].raiseAfterS);
-  private readonly clearAfter = ALARM_CODES.map((c) => ALARM_RULES[c].clearAfterS);
+  private readonly raiseAfter = Float64Array.from(ALARM_CODES, (c) => ALARM_RULES[c].raiseAfterS);
+  private readonly clearAfter = Float64Array.from(ALARM_CODES, (c) => ALARM_RULES[c].clearAfterS);
+  /**
+   * Bit i set while alarm i is raised or its raising condition waits out its delay. An alarm
+   * that is neither has nothing to step while its raising condition is false, so the engine
+   * skips it (most alarms, most samples).
+   */
+  private engaged = 0;
+
+  /** Alarm i must be stepped: its raising condition holds, or it is raised or pending. */
+  needsStep(i: number, raise: boolean): boolean {
+    return raise || (this.engaged & (1 << i)) !== 0;
+  }
 
   /**
    * One evaluation of alarm i at time t. `raise`: the raising condition holds; `clear`: the
@@ -60,9 +71,13 @@ export class AlarmBook {
     if (this.active[i] === null) {
       if (!raise) {
         this.raiseSince[i] = NaN;
+        this.engaged &= ~(1 << i);
         return KEEP;
       }
-      if (this.raiseSince[i] !== this.raiseSince[i]) this.raiseSince[i] = t;
+      if (this.raiseSince[i] !== this.raiseSince[i]) {
+        this.raiseSince[i] = t;
+        this.engaged |= 1 << i;
+      }
       return t - this.raiseSince[i] >= this.raiseAfter[i] ? RAISE : KEEP;
     }
     if (!clear) {
@@ -91,12 +106,14 @@ export class AlarmBook {
     this.active[i] = event;
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
+    this.engaged |= 1 << i;
   }
 
   cleared(i: number): void {
     this.active[i] = null;
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
+    this.engaged &= ~(1 << i);
   }
 
   /** The raised alarms, one per code, in code order. */
