@@ -57,6 +57,8 @@ export class AlarmBook {
    * skips it (most alarms, most samples).
    */
   private engaged = 0;
+  /** Bit i set while alarm i is raised. */
+  private activeBits = 0;
 
   /** Alarm i must be stepped: its raising condition holds, or it is raised or pending. */
   needsStep(i: number, raise: boolean): boolean {
@@ -99,7 +101,12 @@ export class AlarmBook {
   }
 
   isActive(i: number): boolean {
-    return this.active[i] !== null;
+    return (this.activeBits & (1 << i)) !== 0;
+  }
+
+  /** Any of the alarms whose bits (1 << i) are set in mask is raised. */
+  anyActive(mask: number): boolean {
+    return (this.activeBits & mask) !== 0;
   }
 
   raised(i: number, event: AlarmEvent): void {
@@ -107,6 +114,7 @@ export class AlarmBook {
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
     this.engaged |= 1 << i;
+    this.activeBits |= 1 << i;
   }
 
   cleared(i: number): void {
@@ -114,6 +122,7 @@ export class AlarmBook {
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
     this.engaged &= ~(1 << i);
+    this.activeBits &= ~(1 << i);
   }
 
   /** The raised alarms, one per code, in code order. */

@@ -85,6 +85,8 @@ const FAULT_PIN = ALARM_INDEX['fault-pin'];
 const REVERSE_CURRENT = ALARM_INDEX['reverse-current'];
 const SENSOR_FAULT = ALARM_INDEX['sensor-fault'];
 const CONTACT = ALARM_INDEX.contact;
+/** Raised, these stop the charge: the phase shows `fault`. */
+const STOPPING_ALARMS = (1 << FAULT_PIN) | (1 << PRECONDITION_TIMEOUT) | (1 << TIMER);
 
 /** Contact evidence within a minute of the last is the same episode (one opening can also step the voltage). */
 const CONTACT_EPISODE_S = 60;
@@ -156,8 +158,6 @@ class Engine implements RunEngine {
   private contactSteps = 0;
   /** Neighbours further apart than this are not compared for contact evidence: 3 typical intervals, at least 5 s. */
   private contactMaxDtS = 5;
-  /** Overvoltage limit per cell in force (compensated for lead-acid), for the message. */
-  private ovLimitVPerCell: number;
   private overtempCriticalSinceT = NaN;
   /** Why temperature protection is blind (empty when it is not), set per sample or by blindSensor. */
   private blindDetail = '';
@@ -170,7 +170,6 @@ class Engine implements RunEngine {
     this.soc = new SocEstimator(this.lim.capacityAh, this.lim.capacityKnown);
     this.progress = new ProgressTracker(this.lim.stallRiseVPerCell, this.lim.stallRiseAh);
     this.contact = new ContactWatch(contactLimits(profile));
-    this.ovLimitVPerCell = this.lim.overvoltageVPerCell;
   }
 
   push(sample: TimedSample): EngineEvent[] {
@@ -231,9 +230,7 @@ class Engine implements RunEngine {
     this.blindDetail = this.blindFrom(v, sample);
     this.evaluateAlarms(t);
 
-    const faulted =
-      this.book.isActive(FAULT_PIN) || this.book.isActive(PRECONDITION_TIMEOUT) || this.book.isActive(TIMER);
-    const shown = faulted ? FAULT : underlying;
+    const shown = this.book.anyActive(STOPPING_ALARMS) ? FAULT : underlying;
     if (shown !== this.phaseCode || !this.hasPhaseEvent) this.setPhase(shown, t);
     this.prevIbatA = v.ibatA;
     this.prevVbatV = v.vbatV;
@@ -324,25 +321,20 @@ class Engine implements RunEngine {
         this.overtempCriticalSinceT = NaN;
         this.raise(OVERTEMP, t, overtempMessage(tempC, lim.tempHighC, lim.tempCutoffC), 'critical');
       }
-    } else this.overtempCriticalSinceT = NaN;
+    } else if (this.overtempCriticalSinceT === this.overtempCriticalSinceT) this.overtempCriticalSinceT = NaN;
 
     const cold = charging && tempC < lim.tempLowC;
     if (book.needsStep(UNDERTEMP, cold))
       this.act(UNDERTEMP, t, book.step(UNDERTEMP, t, cold, tempC >= lim.tempLowC + lim.tempHysteresisC));
 
-    // Lead-acid: the limit follows the set points' temperature compensation (BU-403; Trojan gel).
-    let ovV = lim.overvoltageVPerCell;
-    let ovClearV = lim.overvoltageClearVPerCell;
-    const comp = lim.tempCompVPerCPerCell;
-    if (comp !== null && tempC === tempC) {
-      const shiftV = comp * (tempC - 25);
-      ovV += shiftV;
-      ovClearV += shiftV;
-    }
-    this.ovLimitVPerCell = ovV;
-    const over = vPerCell > ovV;
+    const shiftV = this.overvoltageShiftV(tempC);
+    const over = vPerCell > lim.overvoltageVPerCell + shiftV;
     if (book.needsStep(OVERVOLTAGE, over))
-      this.act(OVERVOLTAGE, t, book.step(OVERVOLTAGE, t, over, vPerCell < ovClearV));
+      this.act(
+        OVERVOLTAGE,
+        t,
+        book.step(OVERVOLTAGE, t, over, vPerCell < lim.overvoltageClearVPerCell + shiftV),
+      );
 
     // Blind while charging; a charger that stops because of the blind sensor does not end the episode.
     const blind = this.blindDetail !== '';
@@ -404,7 +396,12 @@ class Engine implements RunEngine {
       case UNDERTEMP:
         return undertempMessage(v.tempC, lim.tempLowC, p);
       case OVERVOLTAGE:
-        return overvoltageMessage(v.vbatV, p, this.ovLimitVPerCell, v.tempC);
+        return overvoltageMessage(
+          v.vbatV,
+          p,
+          lim.overvoltageVPerCell + this.overvoltageShiftV(v.tempC),
+          v.tempC,
+        );
       case STALL:
         return stallMessage(
           this.stalledS,
@@ -431,6 +428,12 @@ class Engine implements RunEngine {
         // silence builds its message where it is raised (it needs the quiet time).
         return silenceMessage(0, lim.silenceS);
     }
+  }
+
+  /** Lead-acid: the overvoltage limit follows the set points' temperature compensation (BU-403; Trojan gel). */
+  private overvoltageShiftV(tempC: number): number {
+    const comp = this.lim.tempCompVPerCPerCell;
+    return comp !== null && tempC === tempC ? comp * (tempC - 25) : 0;
   }
 
   /** Overtemp: a warning under the cut-off (NiMH's window top), critical past it. */
