@@ -6,10 +6,20 @@
 import type { ResolvedProfile } from '../chemistry/types';
 import { createLineParser } from '../telemetry/parse-line';
 import type { LineResult, RejectReason } from '../telemetry/types';
-import { implausibility, isPlausible, onlyTemperatureImplausible, plausibilityLimits } from './plausibility';
+import {
+  implausibility,
+  isPlausible as isPlausibleImport,
+  onlyTemperatureImplausible,
+  plausibilityLimits,
+} from './plausibility';
 import { createRunEngine } from './run-engine';
-import { PLACED_GLITCH, RunTimeBase, type ReceiveClock } from './time-base';
+import { PLACED_GLITCH as GLITCH, RunTimeBase, type ReceiveClock } from './time-base';
 import type { EngineEvent, RunState, RunSummary, TimedSample } from './types';
+
+// Module-local copies: under CommonJS interop (tests, tsx) an imported binding is read through
+// a getter on every use, which the per-line path should not pay.
+const isPlausible = isPlausibleImport;
+const PLACED_GLITCH = GLITCH;
 
 export interface LineOutcome {
   result: LineResult;

@@ -28,7 +28,12 @@ import {
   KEEP as KEPT,
   RAISE as RAISED,
 } from './alarms';
-import { CONTACT_NONE, CONTACT_OPENING, ContactWatch, contactLimits } from './contact-watch';
+import {
+  CONTACT_NONE as SEEN_NONE,
+  CONTACT_OPENING as SEEN_OPENING,
+  ContactWatch,
+  contactLimits,
+} from './contact-watch';
 import { deriveLimits, type EngineLimits } from './limits';
 import { EnergyCounter, MpptTracking, SocEstimator, StepResistance, TaperModel } from './metrics';
 import {
@@ -63,6 +68,8 @@ const CLEAR = CLEARED;
 const RAISE = RAISED;
 const SRC_PANEL = PANEL;
 const SRC_UNKNOWN = UNKNOWN;
+const CONTACT_NONE = SEEN_NONE;
+const CONTACT_OPENING = SEEN_OPENING;
 const PRECONDITION = PRECONDITION_CODE;
 const CC = CC_CODE;
 const CV = CV_CODE;
