@@ -16,6 +16,7 @@ import {
   IDLE as IDLE_CODE,
   NO_PHASE as NO_PHASE_CODE,
   PRECONDITION as PRECONDITION_CODE,
+  isChargingCode as isChargingCodeImport,
 } from './phase-codes';
 import type { SampleView } from './sample-view';
 import { PHASES, type Phase } from './types';
@@ -28,6 +29,7 @@ const CV = CV_CODE;
 const DONE = DONE_CODE;
 const IDLE = IDLE_CODE;
 const NO_PHASE = NO_PHASE_CODE;
+const isChargingCode = isChargingCodeImport;
 
 /** In CV the current has left the set current by this fraction (noise on the set current stays CC). */
 const CV_CURRENT_FRACTION = 0.95;
@@ -70,7 +72,7 @@ export class PhaseMachine {
     const currentA = v.ibatA;
     const vPerCell = v.vPerCell;
     if (currentA !== currentA) return this.classifyFromPins(v, prev);
-    const charging = prev <= CV;
+    const charging = isChargingCode(prev);
     // The charger's own "charging" output lowers the bar: a trickle it says it is delivering counts.
     const flowing = currentA >= (charging || v.chg === 1 ? lim.flowOffA : lim.flowOnA);
 

@@ -43,6 +43,7 @@ import {
   FAULT as FAULT_CODE,
   IDLE as IDLE_CODE,
   PRECONDITION as PRECONDITION_CODE,
+  isChargingCode as isChargingCodeImport,
 } from './phase-codes';
 import { PhaseMachine } from './phase-machine';
 import { ProgressTracker } from './progress';
@@ -76,6 +77,7 @@ const CV = CV_CODE;
 const DONE = DONE_CODE;
 const FAULT = FAULT_CODE;
 const IDLE = IDLE_CODE;
+const isChargingCode = isChargingCodeImport;
 
 /** Returned when nothing happened. Shared and frozen: callers must not push into it. */
 const NO_EVENTS: EngineEvent[] = Object.freeze([]) as unknown as EngineEvent[];
@@ -272,12 +274,16 @@ class Engine implements RunEngine {
     // Charging time counts while current flows (or is not reported), like a charger whose timers
     // pause while its input is too weak to deliver anything.
     const underlying = this.machine.code;
-    if (underlying <= CV && !(this.prevIbatA < this.lim.flowOffA)) {
+    if (isChargingCode(underlying) && !(this.prevIbatA < this.lim.flowOffA)) {
       this.chargeS += dtS;
       if (underlying === PRECONDITION) this.preconditionS += dtS;
     }
     const setpointV = this.lim.inputSetpointV;
-    if (setpointV !== null && this.phaseCode <= CV && (v.src === SRC_PANEL || v.src === SRC_UNKNOWN)) {
+    if (
+      setpointV !== null &&
+      isChargingCode(this.phaseCode) &&
+      (v.src === SRC_PANEL || v.src === SRC_UNKNOWN)
+    ) {
       this.mppt.add(dtS, v.vinV, setpointV);
     }
   }
@@ -293,7 +299,7 @@ class Engine implements RunEngine {
     const book = this.book;
     const underlying = this.machine.code;
     const currentA = v.ibatA;
-    const charging = underlying <= CV || currentA >= lim.flowOnA;
+    const charging = isChargingCode(underlying) || currentA >= lim.flowOnA;
     const tempC = v.tempC;
     const vPerCell = v.vPerCell;
 
@@ -374,7 +380,7 @@ class Engine implements RunEngine {
       }
     }
 
-    const shouldFlow = underlying <= CV && this.phaseCode !== FAULT;
+    const shouldFlow = isChargingCode(underlying) && this.phaseCode !== FAULT;
     this.progress.update(t, vPerCell, this.energy.ah, shouldFlow);
     const stalledS = this.progress.stalledS;
     this.stalledS = stalledS;
@@ -524,7 +530,7 @@ class Engine implements RunEngine {
     if (!this.started) return NO_EVENTS;
     this.out = null;
     const at = t > this.lastT ? t : this.lastT;
-    const charging = this.machine.code <= CV || this.view.ibatA >= this.lim.flowOnA;
+    const charging = isChargingCode(this.machine.code) || this.view.ibatA >= this.lim.flowOnA;
     this.blindDetail = detail;
     const book = this.book;
     this.act(SENSOR_FAULT, at, book.step(SENSOR_FAULT, at, charging || book.isPending(SENSOR_FAULT), false));
