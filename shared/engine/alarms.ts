@@ -49,8 +49,21 @@ export class AlarmBook {
   private readonly active: (AlarmEvent | null)[] = ALARM_CODES.map(() => null);
   private readonly raiseSince = new Float64Array(ALARM_CODES.length).fill(NaN);
   private readonly clearSince = new Float64Array(ALARM_CODES.length).fill(NaN);
-  private readonly raiseAfter = ALARM_CODES.map((c) => ALARM_RULES[c].raiseAfterS);
-  private readonly clearAfter = ALARM_CODES.map((c) => ALARM_RULES[c].clearAfterS);
+  private readonly raiseAfter = Float64Array.from(ALARM_CODES, (c) => ALARM_RULES[c].raiseAfterS);
+  private readonly clearAfter = Float64Array.from(ALARM_CODES, (c) => ALARM_RULES[c].clearAfterS);
+  /**
+   * Bit i set while alarm i is raised or its raising condition waits out its delay. An alarm
+   * that is neither has nothing to step while its raising condition is false, so the engine
+   * skips it (most alarms, most samples).
+   */
+  private engaged = 0;
+  /** Bit i set while alarm i is raised. */
+  private activeBits = 0;
+
+  /** Alarm i must be stepped: its raising condition holds, or it is raised or pending. */
+  needsStep(i: number, raise: boolean): boolean {
+    return raise || (this.engaged & (1 << i)) !== 0;
+  }
 
   /**
    * One evaluation of alarm i at time t. `raise`: the raising condition holds; `clear`: the
@@ -60,9 +73,13 @@ export class AlarmBook {
     if (this.active[i] === null) {
       if (!raise) {
         this.raiseSince[i] = NaN;
+        this.engaged &= ~(1 << i);
         return KEEP;
       }
-      if (this.raiseSince[i] !== this.raiseSince[i]) this.raiseSince[i] = t;
+      if (this.raiseSince[i] !== this.raiseSince[i]) {
+        this.raiseSince[i] = t;
+        this.engaged |= 1 << i;
+      }
       return t - this.raiseSince[i] >= this.raiseAfter[i] ? RAISE : KEEP;
     }
     if (!clear) {
@@ -84,19 +101,28 @@ export class AlarmBook {
   }
 
   isActive(i: number): boolean {
-    return this.active[i] !== null;
+    return (this.activeBits & (1 << i)) !== 0;
+  }
+
+  /** Any of the alarms whose bits (1 << i) are set in mask is raised. */
+  anyActive(mask: number): boolean {
+    return (this.activeBits & mask) !== 0;
   }
 
   raised(i: number, event: AlarmEvent): void {
     this.active[i] = event;
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
+    this.engaged |= 1 << i;
+    this.activeBits |= 1 << i;
   }
 
   cleared(i: number): void {
     this.active[i] = null;
     this.raiseSince[i] = NaN;
     this.clearSince[i] = NaN;
+    this.engaged &= ~(1 << i);
+    this.activeBits &= ~(1 << i);
   }
 
   /** The raised alarms, one per code, in code order. */

@@ -9,11 +9,27 @@
  */
 import { compensate as compensateImport, type EngineLimits } from './limits';
 import { NimhTermination } from './nimh-termination';
+import {
+  CC as CC_CODE,
+  CV as CV_CODE,
+  DONE as DONE_CODE,
+  IDLE as IDLE_CODE,
+  NO_PHASE as NO_PHASE_CODE,
+  PRECONDITION as PRECONDITION_CODE,
+  isChargingCode as isChargingCodeImport,
+} from './phase-codes';
 import type { SampleView } from './sample-view';
-import type { Phase } from './types';
+import { PHASES, type Phase } from './types';
 
-// Module-local copy: an imported binding is read through a getter under CommonJS interop.
+// Module-local copies: an imported binding is read through a getter under CommonJS interop.
 const compensate = compensateImport;
+const PRECONDITION = PRECONDITION_CODE;
+const CC = CC_CODE;
+const CV = CV_CODE;
+const DONE = DONE_CODE;
+const IDLE = IDLE_CODE;
+const NO_PHASE = NO_PHASE_CODE;
+const isChargingCode = isChargingCodeImport;
 
 /** In CV the current has left the set current by this fraction (noise on the set current stays CC). */
 const CV_CURRENT_FRACTION = 0.95;
@@ -24,12 +40,17 @@ export function isChargingPhase(phase: Phase): boolean {
   return phase === 'precondition' || phase === 'cc' || phase === 'cv';
 }
 
+/**
+ * Works on phase codes (phase-codes.ts) so the per-sample path compares small integers;
+ * `phase` gives the name.
+ */
 export class PhaseMachine {
-  phase: UnderlyingPhase = 'idle';
+  /** The phase the pack is in, as a code. */
+  code = IDLE;
   sinceT = 0;
   readonly nimh: NimhTermination;
   private started = false;
-  private pending: UnderlyingPhase = 'idle';
+  private pending = IDLE;
   private pendingSinceT = NaN;
   /** Lead-acid: absorption (cv) was reached in this charge, so float may follow. */
   private absorbed = false;
@@ -40,44 +61,48 @@ export class PhaseMachine {
     this.nimh = new NimhTermination(lim);
   }
 
-  /** The phase this one sample points to, from the present phase. */
-  classify(v: SampleView): UnderlyingPhase {
+  get phase(): UnderlyingPhase {
+    return PHASES[this.code] as UnderlyingPhase;
+  }
+
+  /** The phase (code) this one sample points to, from the present phase. */
+  classify(v: SampleView): number {
     const lim = this.lim;
-    const prev = this.phase;
+    const prev = this.code;
     const currentA = v.ibatA;
     const vPerCell = v.vPerCell;
     if (currentA !== currentA) return this.classifyFromPins(v, prev);
-    const charging = isChargingPhase(prev);
+    const charging = isChargingCode(prev);
     // The charger's own "charging" output lowers the bar: a trickle it says it is delivering counts.
     const flowing = currentA >= (charging || v.chg === 1 ? lim.flowOffA : lim.flowOnA);
 
     if (!flowing) {
-      if (v.sourceAbsent()) return 'idle';
-      if (prev === 'done') return 'done';
+      if (v.sourceAbsent()) return IDLE;
+      if (prev === DONE) return DONE;
       // The charger says it is charging but nothing flows (a contact dropout): hold the phase;
       // stall watches a hold that lasts.
       if (charging && v.chg === 1) return prev;
-      if (prev === 'cv') {
+      if (prev === CV) {
         // The taper ended (the current had come down near termination), or the current collapsed
         // mid-taper, which is an interruption, not a full pack.
-        return this.lastFlowingA <= lim.resumeA ? 'done' : 'idle';
+        return this.lastFlowingA <= lim.resumeA ? DONE : IDLE;
       }
-      if (lim.isNimh && prev === 'cc') {
-        if (this.nimh.ended !== null) return 'done';
+      if (lim.isNimh && prev === CC) {
+        if (this.nimh.ended !== null) return DONE;
         // The charger deasserted "charging" after reaching a full-charge voltage.
-        if (v.chg === 0 && vPerCell >= lim.regulationVPerCell) return 'done';
+        if (v.chg === 0 && vPerCell >= lim.regulationVPerCell) return DONE;
       }
-      return 'idle';
+      return IDLE;
     }
 
-    if (prev === 'done' && currentA < lim.resumeA) return 'done';
-    const preV = prev === 'precondition' ? lim.preconditionExitVPerCell : lim.preconditionVPerCell;
+    if (prev === DONE && currentA < lim.resumeA) return DONE;
+    const preV = prev === PRECONDITION ? lim.preconditionExitVPerCell : lim.preconditionVPerCell;
     if (lim.isNimh) {
-      if (this.nimh.ended !== null) return 'done';
-      if (vPerCell < preV && currentA <= lim.preconditionMaxA) return 'precondition';
-      return 'cc';
+      if (this.nimh.ended !== null) return DONE;
+      if (vPerCell < preV && currentA <= lim.preconditionMaxA) return PRECONDITION;
+      return CC;
     }
-    if (vPerCell < preV && currentA <= lim.preconditionMaxA) return 'precondition';
+    if (vPerCell < preV && currentA <= lim.preconditionMaxA) return PRECONDITION;
 
     const tempC = v.tempC;
     if (lim.isLeadAcid && lim.floatVPerCell !== null) {
@@ -93,38 +118,36 @@ export class PhaseMachine {
         vPerCell >= floatV - band &&
         currentA <= lim.terminationA
       )
-        return 'done';
-      if ((prev === 'cv' || prev === 'done') && vPerCell <= floatV + band && currentA < lim.resumeA)
-        return 'done';
+        return DONE;
+      if ((prev === CV || prev === DONE) && vPerCell <= floatV + band && currentA < lim.resumeA) return DONE;
     }
     const regV = compensate(lim, lim.regulationVPerCell, tempC);
-    const band = prev === 'cv' || prev === 'done' ? lim.cvExitFraction : lim.cvEnterFraction;
+    const band = prev === CV || prev === DONE ? lim.cvExitFraction : lim.cvEnterFraction;
     if (vPerCell >= regV * (1 - band)) {
-      if (currentA <= lim.terminationA) return 'done';
-      if (prev === 'cv' || currentA < lim.setA * CV_CURRENT_FRACTION) return 'cv';
+      if (currentA <= lim.terminationA) return DONE;
+      if (prev === CV || currentA < lim.setA * CV_CURRENT_FRACTION) return CV;
     }
     // Below regulation: CC, also when a weak source holds the current under the set current.
-    return 'cc';
+    return CC;
   }
 
   /** No current reported: the charger's "charging" pin and the voltage are all there is. */
-  private classifyFromPins(v: SampleView, prev: UnderlyingPhase): UnderlyingPhase {
+  private classifyFromPins(v: SampleView, prev: number): number {
     const lim = this.lim;
-    if (v.chg === 0) return prev === 'cv' || prev === 'done' ? 'done' : 'idle';
+    if (v.chg === 0) return prev === CV || prev === DONE ? DONE : IDLE;
     if (v.chg !== 1) return prev; // neither current nor pin: nothing to decide from
     const vPerCell = v.vPerCell;
-    if (vPerCell < lim.preconditionVPerCell) return 'precondition';
+    if (vPerCell < lim.preconditionVPerCell) return PRECONDITION;
     const regV = compensate(lim, lim.regulationVPerCell, v.tempC);
-    if (lim.hasCv && vPerCell >= regV * (1 - (prev === 'cv' ? lim.cvExitFraction : lim.cvEnterFraction)))
-      return 'cv';
-    return 'cc';
+    if (lim.hasCv && vPerCell >= regV * (1 - (prev === CV ? lim.cvExitFraction : lim.cvEnterFraction)))
+      return CV;
+    return CC;
   }
 
-  /** Feed one sample. Returns the phase just entered, or null. */
-  update(v: SampleView): UnderlyingPhase | null {
+  /** Feed one sample. Returns the code of the phase just entered, or NO_PHASE. */
+  update(v: SampleView): number {
     const lim = this.lim;
-    if (lim.isNimh && this.phase === 'cc' && v.ibatA >= lim.flowOffA)
-      this.nimh.update(v.t, v.vPerCell, v.tempC);
+    if (lim.isNimh && this.code === CC && v.ibatA >= lim.flowOffA) this.nimh.update(v.t, v.vPerCell, v.tempC);
     const candidate = this.classify(v);
     if (v.ibatA >= lim.flowOffA) this.lastFlowingA = v.ibatA;
     if (!this.started) {
@@ -132,9 +155,9 @@ export class PhaseMachine {
       this.enter(candidate, v.t);
       return candidate;
     }
-    if (candidate === this.phase) {
+    if (candidate === this.code) {
       this.pendingSinceT = NaN;
-      return null;
+      return NO_PHASE;
     }
     if (candidate !== this.pending || this.pendingSinceT !== this.pendingSinceT) {
       this.pending = candidate;
@@ -144,19 +167,19 @@ export class PhaseMachine {
       this.enter(candidate, v.t);
       return candidate;
     }
-    return null;
+    return NO_PHASE;
   }
 
-  private enter(phase: UnderlyingPhase, t: number): void {
-    this.phase = phase;
+  private enter(code: number, t: number): void {
+    this.code = code;
     this.sinceT = t;
     this.pendingSinceT = NaN;
     // A new charge episode starts from idle: −ΔV detection re-arms, and lead-acid must go
     // through absorption again before float.
-    if (phase === 'idle') {
+    if (code === IDLE) {
       this.nimh.reset();
       this.absorbed = false;
     }
-    if (phase === 'cv') this.absorbed = true;
+    if (code === CV) this.absorbed = true;
   }
 }

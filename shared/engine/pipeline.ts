@@ -6,10 +6,20 @@
 import type { ResolvedProfile } from '../chemistry/types';
 import { createLineParser } from '../telemetry/parse-line';
 import type { LineResult, RejectReason } from '../telemetry/types';
-import { implausibility, onlyTemperatureImplausible, plausibilityLimits } from './plausibility';
+import {
+  implausibility,
+  isPlausible as isPlausibleImport,
+  onlyTemperatureImplausible,
+  plausibilityLimits,
+} from './plausibility';
 import { createRunEngine } from './run-engine';
-import { PLACED_GLITCH, RunTimeBase, type ReceiveClock } from './time-base';
+import { PLACED_GLITCH as GLITCH, RunTimeBase, type ReceiveClock } from './time-base';
 import type { EngineEvent, RunState, RunSummary, TimedSample } from './types';
+
+// Module-local copies: under CommonJS interop (tests, tsx) an imported binding is read through
+// a getter on every use, which the per-line path should not pay.
+const isPlausible = isPlausibleImport;
+const PLACED_GLITCH = GLITCH;
 
 export interface LineOutcome {
   result: LineResult;
@@ -56,29 +66,37 @@ export function createPipeline(profile: ResolvedProfile, options: PipelineOption
   let rejectedTotal = 0;
   let typicalS = NaN;
 
-  function accept(parsed: LineResult, rxS: number): LineOutcome {
-    let result = parsed;
-    if (result.kind !== 'blank') lines++;
+  function accept(result: LineResult, rxS: number): LineOutcome {
     if (result.kind === 'sample') {
-      const why = implausibility(result.sample, limits);
-      if (why !== null) {
-        // Counted and kept in the raw record like any rejected line; never integrated. An
-        // impossible temperature alone still tells the engine its temperature protection is blind.
-        const blind = onlyTemperatureImplausible(result.sample, limits);
-        result = { kind: 'rejected', reason: 'implausible', detail: why };
-        rejectedTotal++;
-        rejected.implausible = (rejected.implausible ?? 0) + 1;
-        const events = blind && clock.hasStarted ? engine.blindSensor(clock.at(rxS), why) : NO_EVENTS;
-        return { result, sample: null, events };
-      }
+      lines++;
+      const sample = result.sample as TimedSample;
+      if (isPlausible(sample, limits)) return feed(result, sample, rxS);
+      return refuseImplausible(sample, rxS, implausibility(sample, limits) as string);
     }
+    if (result.kind !== 'blank') lines++;
     if (result.kind === 'rejected') {
       rejectedTotal++;
       rejected[result.reason] = (rejected[result.reason] ?? 0) + 1;
-      return { result, sample: null, events: NO_EVENTS };
     }
-    if (result.kind !== 'sample') return { result, sample: null, events: NO_EVENTS };
-    const sample = result.sample as TimedSample;
+    return { result, sample: null, events: NO_EVENTS };
+  }
+
+  /**
+   * An impossible value: counted and kept in the raw record like any rejected line; never
+   * integrated. An impossible temperature alone still tells the engine its temperature
+   * protection is blind.
+   */
+  function refuseImplausible(sample: TimedSample, rxS: number, why: string): LineOutcome {
+    const blind = onlyTemperatureImplausible(sample, limits);
+    const result: LineResult = { kind: 'rejected', reason: 'implausible', detail: why };
+    rejectedTotal++;
+    rejected.implausible = (rejected.implausible ?? 0) + 1;
+    const events = blind && clock.hasStarted ? engine.blindSensor(clock.at(rxS), why) : NO_EVENTS;
+    return { result, sample: null, events };
+  }
+
+  /** A plausible sample: placed on the run's time axis and fed to the engine. */
+  function feed(result: LineResult, sample: TimedSample, rxS: number): LineOutcome {
     sample.t = clock.place(rxS, sample.deviceS);
     const m = clock.typicalIntervalS;
     if (m !== typicalS && m === m) {

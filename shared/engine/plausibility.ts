@@ -45,6 +45,28 @@ export function plausibilityLimits(p: ResolvedProfile): PlausibilityLimits {
   };
 }
 
+/**
+ * Every value of the sample is physically possible: the usual case, asked first and kept
+ * small so it costs a few comparisons. The same limits as `implausibility`, which words the
+ * first value that breaks them.
+ */
+export function isPlausible(s: Sample, lim: PlausibilityLimits): boolean {
+  const v = s.vbatV;
+  const i = s.ibatA;
+  const temp = s.tempC;
+  const vin = s.vinV;
+  const iin = s.iinA;
+  const t = s.deviceS;
+  return (
+    (v === undefined || (v >= -lim.maxVbatV && v <= lim.maxVbatV)) &&
+    (i === undefined || (i >= -lim.maxCurrentA && i <= lim.maxCurrentA)) &&
+    (temp === undefined || (temp >= TEMP_MIN_C && temp <= TEMP_MAX_C)) &&
+    (vin === undefined || (vin >= -lim.maxVinV && vin <= lim.maxVinV)) &&
+    (iin === undefined || (iin >= -lim.maxCurrentA && iin <= lim.maxCurrentA)) &&
+    (t === undefined || Number.isFinite(t))
+  );
+}
+
 /** Why a sample is implausible, in words for the Line feed; null when it is plausible. */
 export function implausibility(s: Sample, lim: PlausibilityLimits): string | null {
   const v = s.vbatV;

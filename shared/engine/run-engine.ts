@@ -28,10 +28,24 @@ import {
   KEEP as KEPT,
   RAISE as RAISED,
 } from './alarms';
-import { CONTACT_NONE, CONTACT_OPENING, ContactWatch, contactLimits } from './contact-watch';
+import {
+  CONTACT_NONE as SEEN_NONE,
+  CONTACT_OPENING as SEEN_OPENING,
+  ContactWatch,
+  contactLimits,
+} from './contact-watch';
 import { deriveLimits, type EngineLimits } from './limits';
 import { EnergyCounter, MpptTracking, SocEstimator, StepResistance, TaperModel } from './metrics';
-import { isChargingPhase as isChargingPhaseImport, PhaseMachine } from './phase-machine';
+import {
+  CC as CC_CODE,
+  CV as CV_CODE,
+  DONE as DONE_CODE,
+  FAULT as FAULT_CODE,
+  IDLE as IDLE_CODE,
+  PRECONDITION as PRECONDITION_CODE,
+  isChargingCode as isChargingCodeImport,
+} from './phase-codes';
+import { PhaseMachine } from './phase-machine';
 import { ProgressTracker } from './progress';
 import { SampleView, SRC_PANEL as PANEL, SRC_UNKNOWN as UNKNOWN } from './sample-view';
 import {
@@ -55,7 +69,15 @@ const CLEAR = CLEARED;
 const RAISE = RAISED;
 const SRC_PANEL = PANEL;
 const SRC_UNKNOWN = UNKNOWN;
-const isChargingPhase = isChargingPhaseImport;
+const CONTACT_NONE = SEEN_NONE;
+const CONTACT_OPENING = SEEN_OPENING;
+const PRECONDITION = PRECONDITION_CODE;
+const CC = CC_CODE;
+const CV = CV_CODE;
+const DONE = DONE_CODE;
+const FAULT = FAULT_CODE;
+const IDLE = IDLE_CODE;
+const isChargingCode = isChargingCodeImport;
 
 /** Returned when nothing happened. Shared and frozen: callers must not push into it. */
 const NO_EVENTS: EngineEvent[] = Object.freeze([]) as unknown as EngineEvent[];
@@ -72,6 +94,8 @@ const FAULT_PIN = ALARM_INDEX['fault-pin'];
 const REVERSE_CURRENT = ALARM_INDEX['reverse-current'];
 const SENSOR_FAULT = ALARM_INDEX['sensor-fault'];
 const CONTACT = ALARM_INDEX.contact;
+/** Raised, these stop the charge: the phase shows `fault`. */
+const STOPPING_ALARMS = (1 << FAULT_PIN) | (1 << PRECONDITION_TIMEOUT) | (1 << TIMER);
 
 /** Contact evidence within a minute of the last is the same episode (one opening can also step the voltage). */
 const CONTACT_EPISODE_S = 60;
@@ -83,10 +107,6 @@ const CONTACT_CRITICAL_WINDOW_S = 600;
 const CONTACT_CRITICAL_EPISODES = 3;
 /** A warning escalates to critical after its critical condition held this long (the 3 s sensor-noise filter). */
 const ESCALATE_AFTER_S = 3;
-
-const PHASE_INDEX: Readonly<Record<Phase, number>> = Object.fromEntries(
-  PHASES.map((p, i) => [p, i]),
-) as Record<Phase, number>;
 
 /** A time figure shown to a person: finite and not negative, else unknown. */
 function seconds(s: number | null): number | null {
@@ -120,7 +140,8 @@ class Engine implements RunEngine {
   private prevVinV = NaN;
   private prevIinA = NaN;
 
-  private phase: Phase = 'idle';
+  /** The phase shown (the machine's, or fault), as a code (phase-codes.ts). */
+  private phaseCode = IDLE;
   private phaseSinceT = 0;
   /** The first sample always announces its phase. */
   private hasPhaseEvent = false;
@@ -144,9 +165,8 @@ class Engine implements RunEngine {
   private readonly contactEpisodes: number[] = [];
   private contactOpenings = 0;
   private contactSteps = 0;
-  private typicalDtS = 1;
-  /** Overvoltage limit per cell in force (compensated for lead-acid), for the message. */
-  private ovLimitVPerCell: number;
+  /** Neighbours further apart than this are not compared for contact evidence: 3 typical intervals, at least 5 s. */
+  private contactMaxDtS = 5;
   private overtempCriticalSinceT = NaN;
   /** Why temperature protection is blind (empty when it is not), set per sample or by blindSensor. */
   private blindDetail = '';
@@ -159,7 +179,6 @@ class Engine implements RunEngine {
     this.soc = new SocEstimator(this.lim.capacityAh, this.lim.capacityKnown);
     this.progress = new ProgressTracker(this.lim.stallRiseVPerCell, this.lim.stallRiseAh);
     this.contact = new ContactWatch(contactLimits(profile));
-    this.ovLimitVPerCell = this.lim.overvoltageVPerCell;
   }
 
   push(sample: TimedSample): EngineEvent[] {
@@ -208,21 +227,20 @@ class Engine implements RunEngine {
 
     const machine = this.machine;
     const entered = machine.update(v);
-    this.taper.update(t, v.ibatA, machine.phase === 'cv');
-    if (machine.phase === 'precondition') this.soc.anchorEmpty(this.energy.ah);
-    if (entered === 'done') this.soc.anchorFull(this.energy.ah);
+    const underlying = machine.code;
+    this.taper.update(t, v.ibatA, underlying === CV);
+    if (underlying === PRECONDITION) this.soc.anchorEmpty(this.energy.ah);
+    if (entered === DONE) this.soc.anchorFull(this.energy.ah);
     // The clocks pause while nothing charges (a night, a cloud) and restart only when their
     // stage is over: precondition when the pack leaves it, the safety timer at termination.
-    if (machine.phase === 'cc' || machine.phase === 'cv' || machine.phase === 'done') this.preconditionS = 0;
-    if (machine.phase === 'done') this.chargeS = 0;
+    if (underlying === CC || underlying === CV || underlying === DONE) this.preconditionS = 0;
+    if (underlying === DONE) this.chargeS = 0;
 
     this.blindDetail = this.blindFrom(v, sample);
     this.evaluateAlarms(t);
 
-    const faulted =
-      this.book.isActive(FAULT_PIN) || this.book.isActive(PRECONDITION_TIMEOUT) || this.book.isActive(TIMER);
-    const shown: Phase = faulted ? 'fault' : machine.phase;
-    if (shown !== this.phase || !this.hasPhaseEvent) this.setPhase(shown, t);
+    const shown = this.book.anyActive(STOPPING_ALARMS) ? FAULT : underlying;
+    if (shown !== this.phaseCode || !this.hasPhaseEvent) this.setPhase(shown, t);
     this.prevIbatA = v.ibatA;
     this.prevVbatV = v.vbatV;
     this.prevVinV = v.vinV;
@@ -230,11 +248,11 @@ class Engine implements RunEngine {
     return this.out ?? NO_EVENTS;
   }
 
-  private setPhase(phase: Phase, t: number): void {
+  private setPhase(code: number, t: number): void {
     this.hasPhaseEvent = true;
-    this.phase = phase;
+    this.phaseCode = code;
     this.phaseSinceT = t;
-    this.emit({ type: 'phase', t, phase });
+    this.emit({ type: 'phase', t, phase: PHASES[code] });
   }
 
   /** Charge, energy and clocks over the interval since the previous sample. */
@@ -252,58 +270,62 @@ class Engine implements RunEngine {
       v.iinA,
     );
     this.resistance.add(dtS, this.prevVbatV, v.vbatV, this.prevIbatA, v.ibatA);
-    this.phaseS[PHASE_INDEX[this.phase]] += dtS;
+    this.phaseS[this.phaseCode] += dtS;
     // Charging time counts while current flows (or is not reported), like a charger whose timers
     // pause while its input is too weak to deliver anything.
-    const underlying = this.machine.phase;
-    if (isChargingPhase(underlying) && !(this.prevIbatA < this.lim.flowOffA)) {
+    const underlying = this.machine.code;
+    if (isChargingCode(underlying) && !(this.prevIbatA < this.lim.flowOffA)) {
       this.chargeS += dtS;
-      if (underlying === 'precondition') this.preconditionS += dtS;
+      if (underlying === PRECONDITION) this.preconditionS += dtS;
     }
     const setpointV = this.lim.inputSetpointV;
-    if (setpointV !== null && isChargingPhase(this.phase) && (v.src === SRC_PANEL || v.src === SRC_UNKNOWN)) {
+    if (
+      setpointV !== null &&
+      isChargingCode(this.phaseCode) &&
+      (v.src === SRC_PANEL || v.src === SRC_UNKNOWN)
+    ) {
       this.mppt.add(dtS, v.vinV, setpointV);
     }
   }
 
+  /**
+   * Every alarm's conditions for this sample. An alarm goes through the book only when the book
+   * needs it (AlarmBook.needsStep: its raising condition holds, or it is raised or pending);
+   * its clearing condition is worked out only then.
+   */
   private evaluateAlarms(t: number): void {
     const v = this.view;
     const lim = this.lim;
     const book = this.book;
-    const underlying = this.machine.phase;
+    const underlying = this.machine.code;
     const currentA = v.ibatA;
-    const charging = isChargingPhase(underlying) || currentA >= lim.flowOnA;
+    const charging = isChargingCode(underlying) || currentA >= lim.flowOnA;
     const tempC = v.tempC;
     const vPerCell = v.vPerCell;
 
-    this.act(FAULT_PIN, t, book.step(FAULT_PIN, t, v.flt === 1, v.flt === 0));
-    this.act(
-      PRECONDITION_TIMEOUT,
-      t,
-      book.step(
-        PRECONDITION_TIMEOUT,
-        t,
-        underlying === 'precondition' && (this.preconditionS >= lim.preconditionTimeoutS || v.flt === 1),
-        underlying === 'cc' || underlying === 'cv' || underlying === 'done',
-      ),
-    );
-    if (lim.timerS !== null) {
-      this.act(
-        TIMER,
-        t,
-        book.step(
-          TIMER,
-          t,
-          this.chargeS >= lim.timerS && underlying !== 'done',
-          underlying === 'done' || this.chargeS < lim.timerS,
-        ),
-      );
+    const faultPin = v.flt === 1;
+    if (book.needsStep(FAULT_PIN, faultPin))
+      this.act(FAULT_PIN, t, book.step(FAULT_PIN, t, faultPin, v.flt === 0));
+
+    const preconditionStuck =
+      underlying === PRECONDITION && (this.preconditionS >= lim.preconditionTimeoutS || v.flt === 1);
+    if (book.needsStep(PRECONDITION_TIMEOUT, preconditionStuck)) {
+      const left = underlying === CC || underlying === CV || underlying === DONE;
+      this.act(PRECONDITION_TIMEOUT, t, book.step(PRECONDITION_TIMEOUT, t, preconditionStuck, left));
     }
-    this.act(
-      OVERTEMP,
-      t,
-      book.step(OVERTEMP, t, charging && tempC > lim.tempHighC, tempC <= lim.tempHighC - lim.tempHysteresisC),
-    );
+
+    const timerS = lim.timerS;
+    if (timerS !== null) {
+      const expired = this.chargeS >= timerS && underlying !== DONE;
+      if (book.needsStep(TIMER, expired)) {
+        const over = underlying === DONE || this.chargeS < timerS;
+        this.act(TIMER, t, book.step(TIMER, t, expired, over));
+      }
+    }
+
+    const hot = charging && tempC > lim.tempHighC;
+    if (book.needsStep(OVERTEMP, hot))
+      this.act(OVERTEMP, t, book.step(OVERTEMP, t, hot, tempC <= lim.tempHighC - lim.tempHysteresisC));
     // Over the window but under the cut-off is a warning (NiMH); past the cut-off it becomes critical.
     const overtemp = book.get(OVERTEMP);
     if (overtemp !== null && overtemp.level === 'warn' && charging && tempC > lim.tempCutoffC) {
@@ -312,66 +334,59 @@ class Engine implements RunEngine {
         this.overtempCriticalSinceT = NaN;
         this.raise(OVERTEMP, t, overtempMessage(tempC, lim.tempHighC, lim.tempCutoffC), 'critical');
       }
-    } else this.overtempCriticalSinceT = NaN;
-    this.act(
-      UNDERTEMP,
-      t,
-      book.step(UNDERTEMP, t, charging && tempC < lim.tempLowC, tempC >= lim.tempLowC + lim.tempHysteresisC),
-    );
-    // Lead-acid: the limit follows the set points' temperature compensation (BU-403; Trojan gel).
-    let ovV = lim.overvoltageVPerCell;
-    let ovClearV = lim.overvoltageClearVPerCell;
-    const comp = lim.tempCompVPerCPerCell;
-    if (comp !== null && tempC === tempC) {
-      const shiftV = comp * (tempC - 25);
-      ovV += shiftV;
-      ovClearV += shiftV;
-    }
-    this.ovLimitVPerCell = ovV;
-    this.act(OVERVOLTAGE, t, book.step(OVERVOLTAGE, t, vPerCell > ovV, vPerCell < ovClearV));
+    } else if (this.overtempCriticalSinceT === this.overtempCriticalSinceT) this.overtempCriticalSinceT = NaN;
+
+    const cold = charging && tempC < lim.tempLowC;
+    if (book.needsStep(UNDERTEMP, cold))
+      this.act(UNDERTEMP, t, book.step(UNDERTEMP, t, cold, tempC >= lim.tempLowC + lim.tempHysteresisC));
+
+    const shiftV = this.overvoltageShiftV(tempC);
+    const over = vPerCell > lim.overvoltageVPerCell + shiftV;
+    if (book.needsStep(OVERVOLTAGE, over))
+      this.act(
+        OVERVOLTAGE,
+        t,
+        book.step(OVERVOLTAGE, t, over, vPerCell < lim.overvoltageClearVPerCell + shiftV),
+      );
+
     // Blind while charging; a charger that stops because of the blind sensor does not end the episode.
     const blind = this.blindDetail !== '';
-    this.act(
-      SENSOR_FAULT,
-      t,
-      book.step(
-        SENSOR_FAULT,
-        t,
-        blind && (charging || book.isPending(SENSOR_FAULT)),
-        !blind && tempC === tempC,
-      ),
-    );
+    const blindCharging = blind && (charging || book.isPending(SENSOR_FAULT));
+    if (book.needsStep(SENSOR_FAULT, blindCharging))
+      this.act(SENSOR_FAULT, t, book.step(SENSOR_FAULT, t, blindCharging, !blind && tempC === tempC));
+
     this.watchContact(t, charging);
 
     const vinV = v.vinV;
     if (vinV === vinV) {
-      const notDone = underlying !== 'done';
+      const notDone = underlying !== DONE;
       const sp = lim.inputSetpointV;
-      const low = (sp !== null && vinV <= sp * (1 + lim.inputAtFraction)) || vinV < v.vbatV;
-      const recovered = (sp === null || vinV > sp * (1 + lim.inputClearFraction)) && !(vinV < v.vbatV * 1.01);
-      this.act(INPUT_LOW, t, book.step(INPUT_LOW, t, notDone && low, !notDone || recovered));
-    } else {
+      const low = notDone && ((sp !== null && vinV <= sp * (1 + lim.inputAtFraction)) || vinV < v.vbatV);
+      if (book.needsStep(INPUT_LOW, low)) {
+        const recovered =
+          (sp === null || vinV > sp * (1 + lim.inputClearFraction)) && !(vinV < v.vbatV * 1.01);
+        this.act(INPUT_LOW, t, book.step(INPUT_LOW, t, low, !notDone || recovered));
+      }
+    } else if (book.needsStep(INPUT_LOW, false)) {
       book.step(INPUT_LOW, t, false, false); // no source data: never raised from missing data
     }
 
     if (currentA === currentA) {
       const present = v.sourcePresent();
-      this.act(
-        REVERSE_CURRENT,
-        t,
-        book.step(
-          REVERSE_CURRENT,
-          t,
-          currentA < -lim.reverseA && present,
-          currentA >= -0.5 * lim.reverseA || !present,
-        ),
-      );
+      const reverse = currentA < -lim.reverseA && present;
+      if (book.needsStep(REVERSE_CURRENT, reverse)) {
+        const stopped = currentA >= -0.5 * lim.reverseA || !present;
+        this.act(REVERSE_CURRENT, t, book.step(REVERSE_CURRENT, t, reverse, stopped));
+      }
     }
 
-    const shouldFlow = isChargingPhase(underlying) && this.phase !== 'fault';
+    const shouldFlow = isChargingCode(underlying) && this.phaseCode !== FAULT;
     this.progress.update(t, vPerCell, this.energy.ah, shouldFlow);
-    this.stalledS = this.progress.stalledS;
-    this.act(STALL, t, book.step(STALL, t, this.stalledS >= lim.stallS, this.stalledS < lim.stallS));
+    const stalledS = this.progress.stalledS;
+    this.stalledS = stalledS;
+    const stalled = stalledS >= lim.stallS;
+    if (book.needsStep(STALL, stalled))
+      this.act(STALL, t, book.step(STALL, t, stalled, stalledS < lim.stallS));
   }
 
   /** Carry out what the alarm book decided for alarm i. */
@@ -394,7 +409,12 @@ class Engine implements RunEngine {
       case UNDERTEMP:
         return undertempMessage(v.tempC, lim.tempLowC, p);
       case OVERVOLTAGE:
-        return overvoltageMessage(v.vbatV, p, this.ovLimitVPerCell, v.tempC);
+        return overvoltageMessage(
+          v.vbatV,
+          p,
+          lim.overvoltageVPerCell + this.overvoltageShiftV(v.tempC),
+          v.tempC,
+        );
       case STALL:
         return stallMessage(
           this.stalledS,
@@ -421,6 +441,12 @@ class Engine implements RunEngine {
         // silence builds its message where it is raised (it needs the quiet time).
         return silenceMessage(0, lim.silenceS);
     }
+  }
+
+  /** Lead-acid: the overvoltage limit follows the set points' temperature compensation (BU-403; Trojan gel). */
+  private overvoltageShiftV(tempC: number): number {
+    const comp = this.lim.tempCompVPerCPerCell;
+    return comp !== null && tempC === tempC ? comp * (tempC - 25) : 0;
   }
 
   /** Overtemp: a warning under the cut-off (NiMH's window top), critical past it. */
@@ -451,7 +477,7 @@ class Engine implements RunEngine {
   /** Contact evidence from the shared detector; raise, escalate and clear `contact`. */
   private watchContact(t: number, charging: boolean): void {
     const v = this.view;
-    const seen = this.contact.feed(t, v.vbatV, v.ibatA, Math.max(5, 3 * this.typicalDtS), v.sourceAbsent());
+    const seen = this.contact.feed(t, v.vbatV, v.ibatA, this.contactMaxDtS, v.sourceAbsent());
     const episodes = this.contactEpisodes;
     if (seen !== CONTACT_NONE && charging) {
       if (seen === CONTACT_OPENING) this.contactOpenings++;
@@ -504,7 +530,7 @@ class Engine implements RunEngine {
     if (!this.started) return NO_EVENTS;
     this.out = null;
     const at = t > this.lastT ? t : this.lastT;
-    const charging = isChargingPhase(this.machine.phase) || this.view.ibatA >= this.lim.flowOnA;
+    const charging = isChargingCode(this.machine.code) || this.view.ibatA >= this.lim.flowOnA;
     this.blindDetail = detail;
     const book = this.book;
     this.act(SENSOR_FAULT, at, book.step(SENSOR_FAULT, at, charging || book.isPending(SENSOR_FAULT), false));
@@ -512,7 +538,7 @@ class Engine implements RunEngine {
   }
 
   setTypicalInterval(intervalS: number): void {
-    if (intervalS > 0 && Number.isFinite(intervalS)) this.typicalDtS = intervalS;
+    if (intervalS > 0 && Number.isFinite(intervalS)) this.contactMaxDtS = Math.max(5, 3 * intervalS);
   }
 
   tick(t: number): EngineEvent[] {
@@ -558,7 +584,7 @@ class Engine implements RunEngine {
   state(): RunState {
     return {
       t: this.lastT,
-      phase: this.phase,
+      phase: PHASES[this.phaseCode],
       phaseSinceT: this.phaseSinceT,
       last: this.last,
       metrics: this.metrics(),
@@ -587,14 +613,14 @@ class Engine implements RunEngine {
   /** [total, CC part, CV part] seconds to full; null where unknown. */
   private eta(): [number | null, number | null, number | null] {
     const lim = this.lim;
-    const phase = this.phase;
-    if (phase === 'done') return [0, 0, 0];
+    const phase = this.phaseCode;
+    if (phase === DONE) return [0, 0, 0];
     const currentA = this.taper.currentA();
-    if (phase === 'cv') {
+    if (phase === CV) {
       const cvS = this.taper.taperS(currentA, lim.terminationA);
       return cvS === cvS ? [cvS, 0, cvS] : [null, 0, null];
     }
-    if (phase !== 'cc' || !(currentA >= lim.flowOnA)) return [null, null, null];
+    if (phase !== CC || !(currentA >= lim.flowOnA)) return [null, null, null];
     const socPct = this.soc.pct(this.energy.ah);
     if (socPct === null) return [null, null, null];
     const remainingAh = (lim.capacityAh * (100 - socPct)) / 100;

@@ -25,6 +25,8 @@ export class SampleView {
   chg = PIN_UNKNOWN;
   flt = PIN_UNKNOWN;
   src = SRC_UNKNOWN;
+  /** See sourceAbsent; worked out once per sample, asked several times. */
+  private absent = false;
 
   constructor(private readonly cells: number) {}
 
@@ -48,16 +50,16 @@ export class SampleView {
           : src === 'adapter'
             ? SRC_ADAPTER
             : SRC_NONE;
+    this.absent = this.src === SRC_NONE || this.vinV < this.vbatV; // the comparison is false when either is NaN
   }
 
   /** The source is known to be absent or too weak to charge: src=none, or vin under the pack. */
   sourceAbsent(): boolean {
-    if (this.src === SRC_NONE) return true;
-    return this.vinV < this.vbatV; // false when either is NaN
+    return this.absent;
   }
 
   /** A source is present for all we know (reported present, or not reported at all). */
   sourcePresent(): boolean {
-    return !this.sourceAbsent();
+    return !this.absent;
   }
 }

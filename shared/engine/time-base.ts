@@ -56,6 +56,8 @@ export class RunTimeBase {
   private readonly intervals = new Float64Array(WINDOW);
   private readonly scratch = new Float64Array(WINDOW);
   private intervalCount = 0;
+  /** Where the next interval goes in the ring. */
+  private nextInterval = 0;
   private sinceRecompute = 0;
   private medianS = NaN;
 
@@ -107,12 +109,12 @@ export class RunTimeBase {
 
   private placeDevice(rxS: number, deviceS: number): number {
     const stepS = deviceS - this.lastDeviceS;
+    const candS = this.candidateDeviceS;
     if (stepS >= 0 && stepS <= this.allowedStepS(rxS - this.lastDeviceRxS)) {
       this.accept(deviceS, rxS, stepS);
-      this.candidateDeviceS = NaN;
+      if (candS === candS) this.candidateDeviceS = NaN;
       return deviceS - this.baseDeviceS + this.baseT;
     }
-    const candS = this.candidateDeviceS;
     const fromCandS = deviceS - candS;
     // A clock that moved on keeps its new pace: a step no larger than the jump itself also continues it.
     const candStepS = Math.abs(candS - this.lastDeviceS);
@@ -171,7 +173,8 @@ export class RunTimeBase {
   }
 
   private learn(stepS: number): void {
-    this.intervals[this.intervalCount % WINDOW] = stepS;
+    this.intervals[this.nextInterval] = stepS;
+    this.nextInterval = this.nextInterval === WINDOW - 1 ? 0 : this.nextInterval + 1;
     this.intervalCount++;
     if (++this.sinceRecompute < RECOMPUTE_EVERY && this.medianS === this.medianS) return;
     if (this.intervalCount < 3) return;

@@ -16,8 +16,18 @@ export class TaperModel {
   private lastT = NaN;
   private refT = NaN;
   private refA = NaN;
+  /**
+   * The last decay measured: from fromA to toA over spanS. The rate is worked out from them
+   * only when asked (a logarithm on every CV sample otherwise).
+   */
+  private decayFromA = NaN;
+  private decayToA = NaN;
+  private decaySpanS = NaN;
+
   /** Learned decay rate 1/τ, per second; NaN until seen. Kept after CV ends for later estimates. */
-  ratePerS = NaN;
+  get ratePerS(): number {
+    return Math.log(this.decayFromA / this.decayToA) / this.decaySpanS;
+  }
 
   /** Feed the charge current; inCv says whether the pack is in its CV stage. */
   update(t: number, currentA: number, inCv: boolean): void {
@@ -39,7 +49,9 @@ export class TaperModel {
     }
     const span = t - this.refT;
     if (span >= MIN_SPAN_S && this.iFilt < this.refA) {
-      this.ratePerS = Math.log(this.refA / this.iFilt) / span;
+      this.decayFromA = this.refA;
+      this.decayToA = this.iFilt;
+      this.decaySpanS = span;
       if (span >= REANCHOR_S) {
         this.refT = t;
         this.refA = this.iFilt;
@@ -54,15 +66,17 @@ export class TaperModel {
 
   /** Seconds for the taper to fall from fromA to terminationA, or NaN. */
   taperS(fromA: number, terminationA: number): number {
-    if (!(this.ratePerS > 0)) return NaN;
+    const rate = this.ratePerS;
+    if (!(rate > 0)) return NaN;
     if (fromA <= terminationA) return 0;
-    return Math.log(fromA / terminationA) / this.ratePerS;
+    return Math.log(fromA / terminationA) / rate;
   }
 
   /** Ah the taper still delivers from fromA down to terminationA, or NaN. */
   taperAh(fromA: number, terminationA: number): number {
-    if (!(this.ratePerS > 0)) return NaN;
+    const rate = this.ratePerS;
+    if (!(rate > 0)) return NaN;
     if (fromA <= terminationA) return 0;
-    return (fromA - terminationA) / this.ratePerS / 3600;
+    return (fromA - terminationA) / rate / 3600;
   }
 }
