@@ -101,7 +101,7 @@ export class FieldWriter {
     // + 0 turns -0 into 0, as the general path does.
     const value = h.identity ? plain + 0 : this.toBase(plain, h.conv);
     if (value - value !== 0) return false; // Infinity or NaN
-    this.store(h.slot, value, h.conv.unitQuantity === 'resistance');
+    this.store(h.slot, value, h.ohm);
     return true;
   }
 
@@ -176,17 +176,6 @@ export class FieldWriter {
     return false;
   }
 
-  /** A 0/1 field (chg, flt) already read. */
-  setFlag(h: FieldHandler, on: boolean): void {
-    this.flag(h.slot, on);
-  }
-
-  /** The source name already read. */
-  setSource(src: SourceKind): void {
-    this.sample.src = src;
-    this.written++;
-  }
-
   private flag(slot: Slot, on: boolean): void {
     if (slot === 7) this.sample.chg = on;
     else this.sample.flt = on;
@@ -194,34 +183,45 @@ export class FieldWriter {
   }
 
   private store(slot: Slot, value: number, isOhm: boolean): void {
-    const s = this.sample;
-    switch (slot) {
-      case 0:
-        s.deviceS = value;
-        break;
-      case 1:
-        s.vbatV = value;
-        break;
-      case 2:
-        s.ibatA = value;
-        break;
-      case 3:
-        s.tempC = value;
-        break;
-      case 4:
-        s.ntcRaw = value;
-        this.ntcIsOhm = isOhm;
-        break;
-      case 5:
-        s.vinV = value;
-        break;
-      case 6:
-        s.iinA = value;
-        break;
-      default:
-        return;
-    }
+    if (slot > 6) return;
+    if (slot === 4) this.ntcIsOhm = isOhm;
+    storeNumber(this.sample, slot, value);
     this.written++;
+  }
+
+  /**
+   * The key=value byte scan wrote `count` values into `sample` itself (plain numbers
+   * through storeNumber, flags, the source), in base units with no `ntc` in ohms.
+   */
+  wroteDirectly(count: number): void {
+    this.written = count;
+  }
+}
+
+/** A number in base units into its sample property (slots 0 to 6). */
+export function storeNumber(sample: Sample, slot: Slot, value: number): void {
+  switch (slot) {
+    case 0:
+      sample.deviceS = value;
+      break;
+    case 1:
+      sample.vbatV = value;
+      break;
+    case 2:
+      sample.ibatA = value;
+      break;
+    case 3:
+      sample.tempC = value;
+      break;
+    case 4:
+      sample.ntcRaw = value;
+      break;
+    case 5:
+      sample.vinV = value;
+      break;
+    case 6:
+      sample.iinA = value;
+      break;
   }
 }
 
