@@ -4,6 +4,11 @@
  * (units.toBase), are refused as `implausible` when that leaves the range of numbers,
  * and land in their slot; flags and the source name are read here too. One writer is
  * reused for every line of a parser, so a line costs only its sample.
+ *
+ * One exception, for speed: the key=value byte scan of replay stores the values that
+ * need nothing of this (a plain number with no unit or calibration, a 0/1 flag, a
+ * lower-case source name) into `sample` itself, numbers through storeNumber below, and
+ * reports the count with wroteDirectly.
  */
 import type { LineResult, Sample, SourceKind, ThermistorModel } from '../types';
 import {
