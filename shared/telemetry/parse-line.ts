@@ -148,8 +148,7 @@ export function createLineParser(options: ParserOptions = {}): LineParser {
         first !== 123 &&
         bytes[to - 3] !== 42
       ) {
-        writer.begin(rxS);
-        if (keyValue.fastBytes(bytes, from, to)) return writer.finish();
+        if (keyValue.fastBytes(bytes, from, to, rxS)) return writer.finish();
       }
     }
     return parse(from === to ? '' : decoder.decode(bytes.subarray(from, to)), rxS, tooLong);

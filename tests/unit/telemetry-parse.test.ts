@@ -185,6 +185,22 @@ test('ntc is converted to tempC through the thermistor model, ntcRaw kept', () =
   near(sampleOf(p.parse('ntc=4.101k', 0)).tempC, 50, 0.01);
 });
 
+test('the byte path (replay) reads a profile unit as the text path does: ntc in ohms, mV, -0', () => {
+  const p = createLineParser({
+    fields: { ntc: { key: 'ntc', unit: 'Ohm' }, vbat: { key: 'mv', unit: 'mV' } },
+    thermistor: { model: 'beta', r25: 10000, beta: 3435, pullupOhm: 10000, adcMax: 4095 },
+  });
+  const line = 'ntc=4101 mv=8214 ibat=-0 chg=1';
+  const bytes = new TextEncoder().encode(line);
+  const fromBytes = sampleOf(p.parseBytes(bytes, 0, bytes.length, 7));
+  assert.deepEqual(fromBytes, sampleOf(p.parse(line, 7)));
+  // 4 101 Ω is 50 °C for B3435 (as above): the unit says ohms, so the divider is not applied.
+  assert.equal(fromBytes.ntcRaw, 4101);
+  near(fromBytes.tempC, 50, 0.01);
+  assert.equal(fromBytes.vbatV, 8.214);
+  assert.ok(Object.is(fromBytes.ibatA, 0), 'ibat=-0 is stored as 0');
+});
+
 test('ntc without a divider is ohms; Steinhart–Hart model', () => {
   // A, B, C of the 10 kΩ "Type II / 10K3" curve (IDUINO analog temperature sensor manual), 32 650 Ω
   // = 0.00 °C as in Campbell Scientific 109SS manual Table C-1.

@@ -51,13 +51,27 @@ export interface FieldHandler {
   readonly profileError: string | null;
   /** No unit, scale or offset: a number is stored as read. */
   readonly identity: boolean;
+  /** The profile's unit is a resistance (an `ntc` read in ohms, not ADC counts). */
+  readonly ohm: boolean;
+  /** A plain number is stored as read with nothing to note: identity, and not in ohms. */
+  readonly storedAsRead: boolean;
 }
 
 function handler(field: CanonicalField, conv: KeyConversion, profileError: string | null): FieldHandler {
   const kind: ValueKind =
     field === 'chg' || field === 'flt' ? 1 : field === 'src' ? 2 : profileError !== null ? 3 : 0;
   const identity = conv.unitFactor === 1 && conv.unitOffset === 0 && conv.scale === 1 && conv.offset === 0;
-  return { field, slot: SLOTS[field], kind, conv, profileError, identity };
+  const ohm = conv.unitQuantity === 'resistance';
+  return {
+    field,
+    slot: SLOTS[field],
+    kind,
+    conv,
+    profileError,
+    identity,
+    ohm,
+    storedAsRead: identity && !ohm,
+  };
 }
 
 export interface KeyEntry {

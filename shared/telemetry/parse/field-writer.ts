@@ -4,6 +4,11 @@
  * (units.toBase), are refused as `implausible` when that leaves the range of numbers,
  * and land in their slot; flags and the source name are read here too. One writer is
  * reused for every line of a parser, so a line costs only its sample.
+ *
+ * One exception, for speed: the key=value byte scan of replay stores the values that
+ * need nothing of this (a plain number with no unit or calibration, a 0/1 flag, a
+ * lower-case source name) into `sample` itself, numbers through storeNumber below, and
+ * reports the count with wroteDirectly.
  */
 import type { LineResult, Sample, SourceKind, ThermistorModel } from '../types';
 import {
@@ -101,7 +106,7 @@ export class FieldWriter {
     // + 0 turns -0 into 0, as the general path does.
     const value = h.identity ? plain + 0 : this.toBase(plain, h.conv);
     if (value - value !== 0) return false; // Infinity or NaN
-    this.store(h.slot, value, h.conv.unitQuantity === 'resistance');
+    this.store(h.slot, value, h.ohm);
     return true;
   }
 
@@ -176,17 +181,6 @@ export class FieldWriter {
     return false;
   }
 
-  /** A 0/1 field (chg, flt) already read. */
-  setFlag(h: FieldHandler, on: boolean): void {
-    this.flag(h.slot, on);
-  }
-
-  /** The source name already read. */
-  setSource(src: SourceKind): void {
-    this.sample.src = src;
-    this.written++;
-  }
-
   private flag(slot: Slot, on: boolean): void {
     if (slot === 7) this.sample.chg = on;
     else this.sample.flt = on;
@@ -194,34 +188,45 @@ export class FieldWriter {
   }
 
   private store(slot: Slot, value: number, isOhm: boolean): void {
-    const s = this.sample;
-    switch (slot) {
-      case 0:
-        s.deviceS = value;
-        break;
-      case 1:
-        s.vbatV = value;
-        break;
-      case 2:
-        s.ibatA = value;
-        break;
-      case 3:
-        s.tempC = value;
-        break;
-      case 4:
-        s.ntcRaw = value;
-        this.ntcIsOhm = isOhm;
-        break;
-      case 5:
-        s.vinV = value;
-        break;
-      case 6:
-        s.iinA = value;
-        break;
-      default:
-        return;
-    }
+    if (slot > 6) return;
+    if (slot === 4) this.ntcIsOhm = isOhm;
+    storeNumber(this.sample, slot, value);
     this.written++;
+  }
+
+  /**
+   * The key=value byte scan wrote `count` values into `sample` itself (plain numbers
+   * through storeNumber, flags, the source), in base units with no `ntc` in ohms.
+   */
+  wroteDirectly(count: number): void {
+    this.written = count;
+  }
+}
+
+/** A number in base units into its sample property (slots 0 to 6). */
+export function storeNumber(sample: Sample, slot: Slot, value: number): void {
+  switch (slot) {
+    case 0:
+      sample.deviceS = value;
+      break;
+    case 1:
+      sample.vbatV = value;
+      break;
+    case 2:
+      sample.ibatA = value;
+      break;
+    case 3:
+      sample.tempC = value;
+      break;
+    case 4:
+      sample.ntcRaw = value;
+      break;
+    case 5:
+      sample.vinV = value;
+      break;
+    case 6:
+      sample.iinA = value;
+      break;
   }
 }
 
