@@ -109,25 +109,23 @@ async function readlineOnly(path: string): Promise<number> {
   return lines;
 }
 
-/** `taperline replay FILE --events` in-process: replay's own loop, output to /dev/null. */
+/**
+ * `taperline replay FILE --events` in-process: replay's own loop, output to /dev/null. The
+ * lines are counted from the summary replay writes last, not by wrapping its loop.
+ */
 async function replayPath(path: string, profileJson: unknown): Promise<number> {
   const parsed = parseProfile(profileJson);
   if (!parsed.ok) throw new Error(parsed.error);
   const fd = openSync('/dev/null', 'w');
-  const sink = new EventSink(true, (text) => writeSync(fd, text));
-  let lines = 0;
-  const input = openLineInput(path, {});
-  const counted = {
-    ...input,
-    forEachBytes: (onLine: Parameters<NonNullable<typeof input.forEachBytes>>[0]) =>
-      (input.forEachBytes as NonNullable<typeof input.forEachBytes>)((bytes, from, to, rxS, tooLong) => {
-        lines++;
-        onLine(bytes, from, to, rxS, tooLong);
-      }),
-  };
-  await replayInto(counted, parsed.profile, sink, { speed: 'max' });
+  let last = '';
+  const sink = new EventSink(true, (text) => {
+    last = text;
+    writeSync(fd, text);
+  });
+  await replayInto(openLineInput(path, {}), parsed.profile, sink, { speed: 'max' });
   closeSync(fd);
-  return lines;
+  const summary = JSON.parse(last.trimEnd().split('\n').at(-1) as string) as { lines: number };
+  return summary.lines;
 }
 
 async function textPipeline(path: string, profileJson: unknown): Promise<number> {

@@ -135,6 +135,44 @@ test('any chunking of any bytes frames exactly like the byte-at-a-time oracle', 
   );
 });
 
+test('the byte framer (replay) frames any chunking at any memory offset like the oracle', () => {
+  // Chunks are views at random offsets of larger buffers, so the four-byte newline scan meets
+  // every alignment; long runs without a newline and \r\n pairs across chunk ends included.
+  const byteArb = fc.oneof(
+    fc.constantFrom(10, 13, 0x61, 0x3d, 0x2c, 0x0a, 0xc3, 0xa9),
+    fc.integer({ min: 0, max: 255 }),
+  );
+  fc.assert(
+    fc.property(
+      fc.array(byteArb, { maxLength: 600 }),
+      fc.array(fc.integer({ min: 1, max: 90 }), { minLength: 1, maxLength: 20 }),
+      fc.array(fc.integer({ min: 0, max: 7 }), { minLength: 1, maxLength: 8 }),
+      fc.integer({ min: 4, max: 60 }),
+      (bytesList, cuts, offsets, maxBytes) => {
+        const bytes = Uint8Array.from(bytesList);
+        const out: Framed[] = [];
+        const dec = new TextDecoder();
+        const framer = LineFramer.ofBytes(
+          (b, from, to, tooLong) => out.push([dec.decode(b.subarray(from, to)), tooLong]),
+          maxBytes,
+        );
+        let pos = 0;
+        for (let k = 0; pos < bytes.length; k++) {
+          const len = Math.min(cuts[k % cuts.length], bytes.length - pos);
+          const offset = offsets[k % offsets.length];
+          const host = new Uint8Array(offset + len + 5).fill(10); // newlines around: never read
+          host.set(bytes.subarray(pos, pos + len), offset);
+          framer.push(host.subarray(offset, offset + len));
+          pos += len;
+        }
+        framer.end();
+        assert.deepEqual(out, oracle(bytes, maxBytes));
+      },
+    ),
+    { numRuns: 3000 },
+  );
+});
+
 test('capLine cuts strings split elsewhere at a character boundary', () => {
   assert.deepEqual(capLine('t=1'), { text: 't=1', tooLong: false });
   assert.deepEqual(capLine('é'.repeat(3000)), { text: 'é'.repeat(2048), tooLong: true }); // 2 bytes each
