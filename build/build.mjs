@@ -1,7 +1,7 @@
 // Bundles the CLI, the Electron main process, the preload and the renderer with esbuild.
 // Type checking is separate (`npm run typecheck`), so this stays a matter of seconds.
 import { build } from 'esbuild';
-import { cpSync, existsSync, mkdirSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -10,15 +10,7 @@ const out = join(root, 'dist');
 const started = Date.now();
 
 // Native and Electron modules stay outside the bundles: they load from node_modules.
-const nodeExternal = [
-  'electron',
-  'better-sqlite3',
-  'serialport',
-  '@serialport/*',
-  'bufferutil',
-  'utf-8-validate',
-  'playwright-core',
-];
+const nodeExternal = JSON.parse(readFileSync(join(root, 'build', 'node-externals.json'), 'utf8')).modules;
 
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', absWorkingDir: root };
 

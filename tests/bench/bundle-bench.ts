@@ -8,6 +8,7 @@
 import { build } from 'esbuild';
 import { existsSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
+import nodeExternals from '../../build/node-externals.json';
 
 /** The project folder: the nearest folder above `from` holding package.json. */
 export function projectRoot(from: string = __dirname): string {
@@ -34,18 +35,8 @@ export async function bundleBench(benchFile: string): Promise<string> {
     sourcemap: false,
     logLevel: 'warning',
     absWorkingDir: root,
-    // The same externals as the CLI's bundle (native modules load from node_modules).
-    external: [
-      'electron',
-      'better-sqlite3',
-      'serialport',
-      '@serialport/*',
-      'bufferutil',
-      'utf-8-validate',
-      'playwright-core',
-      'esbuild',
-      'tsx',
-    ],
+    // The same externals as the CLI's bundle, and the tools that only run the benches.
+    external: [...nodeExternals.modules, 'esbuild', 'tsx'],
   });
   return outfile;
 }
