@@ -235,11 +235,7 @@ async function serveRunDownload(
   if (!ctx.recorder || !run) return sendText(res, 404, `no recorded run ${runId}`);
   const stem = runFileStem(run);
   if (file === 'export.csv') {
-    res.writeHead(200, {
-      'Content-Type': 'text/csv; charset=utf-8',
-      'Content-Disposition': `attachment; filename="${stem}.csv"`,
-      'Cache-Control': 'no-store',
-    });
+    res.writeHead(200, csvHeaders(stem));
     // The export ends the response. When the browser aborts the download it rejects (and has
     // already destroyed the response), so the handler settles instead of waiting for a drain.
     return ctx.recorder.exportCsv(runId, res);
@@ -262,13 +258,27 @@ async function serveRunDownload(
   }
   if (!ctx.reportHtml) return sendText(res, 404, 'run reports are not offered by this server');
   const html = await ctx.reportHtml(runId);
-  res.writeHead(200, {
+  res.writeHead(200, reportHeaders(stem, html));
+  res.end(html);
+}
+
+/** A CSV file offered as a download. */
+function csvHeaders(stem: string): Record<string, string> {
+  return {
+    'Content-Type': 'text/csv; charset=utf-8',
+    'Content-Disposition': `attachment; filename="${stem}.csv"`,
+    'Cache-Control': 'no-store',
+  };
+}
+
+/** A report page shown in the browser (and saved under its name), under its own nonce policy. */
+function reportHeaders(stem: string, html: string): Record<string, string> {
+  return {
     'Content-Type': 'text/html; charset=utf-8',
     'Content-Security-Policy': reportCsp(html),
     'Content-Disposition': `inline; filename="${stem}.html"`,
     'Cache-Control': 'no-store',
-  });
-  res.end(html);
+  };
 }
 
 async function serveBatchDownload(
@@ -292,20 +302,7 @@ async function serveBatchDownload(
     return sendText(res, 404, errorText(err));
   }
   const stem = batchFileStem(batchId);
-  if (what === 'csv') {
-    res.writeHead(200, {
-      'Content-Type': 'text/csv; charset=utf-8',
-      'Content-Disposition': `attachment; filename="${stem}.csv"`,
-      'Cache-Control': 'no-store',
-    });
-  } else {
-    res.writeHead(200, {
-      'Content-Type': 'text/html; charset=utf-8',
-      'Content-Security-Policy': reportCsp(text),
-      'Content-Disposition': `inline; filename="${stem}.html"`,
-      'Cache-Control': 'no-store',
-    });
-  }
+  res.writeHead(200, what === 'csv' ? csvHeaders(stem) : reportHeaders(stem, text));
   res.end(text);
 }
 
