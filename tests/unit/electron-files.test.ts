@@ -124,3 +124,48 @@ test('the save dialog proposes a plain file name for a run recorded from a port 
     'taperline-run-6-'.length + 64,
   );
 });
+
+test('a Batch report is saved where the person chooses, under a plain file name', async () => {
+  const recorder = openRecorder(join(dir, 'batch.sqlite'));
+  const stations = createStationManager();
+  const written: [string, string, boolean][] = [];
+  const service = createAppService({
+    stations,
+    recorder,
+    exportMode: { kind: 'save', choosePath: async (name) => join(dir, 'chosen-' + name) },
+    writeBatchFile: async (batchId, path, csv) => {
+      written.push([batchId, path, csv]);
+    },
+  });
+  try {
+    // An invented lot: a 1S LiFePO4 garden-light board with its design values.
+    const { runId } = recorder.startRun({
+      stationId: 'rack-1',
+      stationLabel: 'rack 1',
+      profileName: 'garden light 1S LiFePO4 (invented demo)',
+      chemistry: 'lifepo4',
+      profileJson: { chemistry: 'lifepo4', cells: 1, expect: { chargeCurrentA: [0.45, 0.55] } },
+      startRxS: 1_800_000_000,
+    });
+    recorder.setRunInfo(runId, { batchId: 'lot/7' });
+    recorder.flush();
+    assert.deepEqual(await service.handle('batches.report', { batchId: 'lot/7' }), {
+      savedTo: join(dir, 'chosen-taperline-batch-lot_7.html'),
+    });
+    assert.deepEqual(await service.handle('batches.report', { batchId: 'lot/7', csv: true }), {
+      savedTo: join(dir, 'chosen-taperline-batch-lot_7.csv'),
+    });
+    assert.deepEqual(written, [
+      ['lot/7', join(dir, 'chosen-taperline-batch-lot_7.html'), false],
+      ['lot/7', join(dir, 'chosen-taperline-batch-lot_7.csv'), true],
+    ]);
+    await assert.rejects(
+      service.handle('batches.report', { batchId: 'lot/8' }),
+      /no recorded run belongs to batch "lot\/8"/,
+    );
+  } finally {
+    service.close();
+    await stations.close();
+    recorder.close();
+  }
+});
