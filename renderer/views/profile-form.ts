@@ -87,6 +87,11 @@ export const PRESETS: { label: string; profile: Record<string, unknown> }[] = [
   },
 ];
 
+/** A table's header row, one column heading per name. */
+function columnHeads(names: string[]): HTMLElement {
+  return h('thead', {}, h('tr', {}, ...names.map((name) => h('th', { scope: 'col' }, name))));
+}
+
 export interface ProfileForm {
   root: HTMLElement;
   /** The profile JSON of the form as typed. */
@@ -296,18 +301,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       h(
         'table',
         { class: 'mapping-table design-table' },
-        h(
-          'thead',
-          {},
-          h(
-            'tr',
-            {},
-            h('th', { scope: 'col' }, 'Value'),
-            h('th', { scope: 'col' }, 'Lowest'),
-            h('th', { scope: 'col' }, 'Highest'),
-            h('th', { scope: 'col' }, ''),
-          ),
-        ),
+        columnHeads(['Value', 'Lowest', 'Highest', '']),
         h('tbody', {}, ...designRows),
       ),
     ),
@@ -318,18 +312,7 @@ export function createProfileForm(idPrefix: string): ProfileForm {
       h(
         'table',
         { class: 'mapping-table' },
-        h(
-          'thead',
-          {},
-          h(
-            'tr',
-            {},
-            h('th', { scope: 'col' }, 'Field'),
-            h('th', { scope: 'col' }, 'Device key'),
-            h('th', { scope: 'col' }, 'Unit'),
-            h('th', { scope: 'col' }, ''),
-          ),
-        ),
+        columnHeads(['Field', 'Device key', 'Unit', '']),
         h('tbody', {}, ...mappingRows),
       ),
     ),
